@@ -1,0 +1,70 @@
+/**
+ * `npm start`: the local demo. Starts the private Postgres cluster (.data/pg-dev), migrates,
+ * seeds the demo data when the database is empty, builds the client, and serves API and PWA
+ * on http://127.0.0.1:8080 (PORT overrides). Ctrl-C or SIGTERM stops everything it started.
+ */
+import { spawn, spawnSync, type ChildProcess } from 'node:child_process';
+import path from 'node:path';
+import { clusterDir, ensureDatabase, startCluster, stopCluster } from './lib/postgres';
+import { createDb, migrateLatest } from '../server/db';
+import { isEmpty, seedDemo } from '../server/seed/demo';
+
+const root = path.resolve(import.meta.dirname, '..');
+const port = Number(process.env.PORT ?? 8080);
+const pgPort = Number(process.env.CW_PG_PORT ?? 54329);
+
+const dataDir = clusterDir(root, 'pg-dev');
+let server: ChildProcess | undefined;
+let stopping = false;
+
+function stopAll(code: number): void {
+  if (stopping) return;
+  stopping = true;
+  const done = () => {
+    stopCluster(dataDir);
+    process.exit(code);
+  };
+  if (server && server.exitCode === null) {
+    server.once('exit', done);
+    server.kill('SIGTERM');
+    setTimeout(() => {
+      server?.kill('SIGKILL');
+    }, 8000).unref();
+  } else done();
+}
+process.on('SIGINT', () => stopAll(0));
+process.on('SIGTERM', () => stopAll(0));
+process.on('SIGHUP', () => stopAll(0));
+
+try {
+  const cluster = startCluster({ dataDir, port: pgPort });
+  const databaseUrl = await ensureDatabase(cluster, 'corewright');
+  const db = createDb(databaseUrl);
+  const ran = await migrateLatest(db);
+  console.log(`[start] migrations: ${ran.length ? ran.join(', ') : 'already current'}`);
+  if (await isEmpty(db)) {
+    await seedDemo(db);
+    console.log('[start] demo data seeded');
+  }
+  await db.destroy();
+  if (!process.argv.includes('--no-build')) {
+    console.log('[start] building the client...');
+    const build = spawnSync('npx', ['vite', 'build', '--logLevel', 'warn'], { cwd: root, stdio: 'inherit' });
+    if (build.status !== 0) throw new Error('the client build failed');
+  }
+  server = spawn(process.execPath, ['--import', 'tsx', path.join(root, 'server/index.ts')], {
+    cwd: root,
+    stdio: 'inherit',
+    env: { ...process.env, DATABASE_URL: databaseUrl, PORT: String(port), NODE_ENV: process.env.NODE_ENV ?? 'development' },
+  });
+  server.on('exit', (code) => {
+    if (!stopping) {
+      console.error(`[start] the server stopped (exit ${code}); stopping Postgres`);
+      stopAll(code ?? 1);
+    }
+  });
+  console.log(`\n  Corewright: http://127.0.0.1:${port}\n  Demo accounts (local demo only), password corewright-demo:\n    tech@demo.corewright.test  lead@demo.corewright.test  admin@demo.corewright.test\n  Ctrl-C stops the app and its database.\n`);
+} catch (err) {
+  console.error(`[start] ${(err as Error).message}`);
+  stopAll(1);
+}

@@ -1,0 +1,3 @@
+export * from './errors';
+export * from './schemas/auth';
+export * from './cautions';

@@ -1,0 +1,50 @@
+import { z } from 'zod';
+
+export const Role = z.enum(['technician', 'supervisor', 'admin']);
+export type Role = z.infer<typeof Role>;
+
+export const Email = z
+  .string({ error: 'enter an e-mail address' })
+  .trim()
+  .toLowerCase()
+  .max(254, { error: 'an e-mail address has at most 254 characters' })
+  .pipe(z.email({ error: 'enter a valid e-mail address, like name@example.test' }));
+
+export const SignInRequest = z.strictObject({
+  email: Email,
+  password: z.string({ error: 'enter your password' }).min(1, { error: 'enter your password' }).max(200, { error: 'a password has at most 200 characters' }),
+  deviceId: z.uuid({ error: 'deviceId must be a UUID' }).optional(),
+});
+export type SignInRequest = z.infer<typeof SignInRequest>;
+
+export const RefreshRequest = z.strictObject({
+  refreshToken: z.string({ error: 'send the refresh token' }).min(20, { error: 'the refresh token is too short' }).max(300, { error: 'the refresh token is too long' }),
+});
+export type RefreshRequest = z.infer<typeof RefreshRequest>;
+
+export const User = z.object({
+  id: z.uuid(),
+  email: z.string(),
+  name: z.string(),
+  role: Role,
+});
+export type User = z.infer<typeof User>;
+
+export const SignInResponse = z.object({
+  accessToken: z.string(),
+  refreshToken: z.string(),
+  expiresIn: z.number(),
+  user: User,
+});
+export type SignInResponse = z.infer<typeof SignInResponse>;
+
+export const Health = z.object({
+  status: z.enum(['ok', 'degraded']),
+  version: z.string(),
+  time: z.string(),
+  database: z.object({ state: z.enum(['up', 'down']), latencyMs: z.number().nullable(), migrations: z.enum(['current', 'pending', 'unknown']) }),
+});
+export type Health = z.infer<typeof Health>;
+
+/** Lowest role first: what each role may see in the navigation. */
+export const roleRank: Record<Role, number> = { technician: 0, supervisor: 1, admin: 2 };

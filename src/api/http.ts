@@ -1,0 +1,76 @@
+/**
+ * The one place the client talks HTTP. Every answer is parsed with a shared zod schema;
+ * every failure becomes an ApiError carrying the server's code and message, or
+ * `network` when the server could not be reached at all.
+ */
+import type { z } from 'zod';
+import type { ApiErrorBody, ErrorDetail } from '@shared/errors';
+
+export class ApiError extends Error {
+  constructor(
+    readonly code: string,
+    message: string,
+    readonly status: number,
+    readonly details: ErrorDetail[] = [],
+  ) {
+    super(message);
+  }
+  get isNetwork(): boolean {
+    return this.code === 'network';
+  }
+}
+
+export interface TokenSource {
+  accessToken(): string | null;
+  /** Gets a fresh access token after a 401; null when the session is over. */
+  refresh(): Promise<string | null>;
+}
+
+let tokens: TokenSource | null = null;
+export function useTokenSource(source: TokenSource | null): void {
+  tokens = source;
+}
+
+interface Options<S extends z.ZodType> {
+  body?: unknown;
+  schema?: S;
+  auth?: boolean;
+  signal?: AbortSignal;
+}
+
+async function send(method: string, path: string, body: unknown, token: string | null, signal?: AbortSignal): Promise<Response> {
+  const headers: Record<string, string> = { Accept: 'application/json' };
+  if (body !== undefined) headers['Content-Type'] = 'application/json';
+  if (token) headers.Authorization = `Bearer ${token}`;
+  try {
+    return await fetch(path, { method, headers, body: body === undefined ? null : JSON.stringify(body), signal: signal ?? null, cache: 'no-store' });
+  } catch (err) {
+    if ((err as Error).name === 'AbortError') throw err;
+    throw new ApiError('network', 'The server cannot be reached; check the connection. Nothing was lost.', 0);
+  }
+}
+
+async function errorOf(res: Response): Promise<ApiError> {
+  try {
+    const body = (await res.json()) as ApiErrorBody;
+    if (body?.error?.code) return new ApiError(body.error.code, body.error.message, res.status, body.error.details ?? []);
+  } catch {
+    // not our JSON: a proxy or the service worker answered
+  }
+  return new ApiError(res.status >= 500 ? 'internal' : 'unknown', `The server answered ${res.status} ${res.statusText}.`, res.status);
+}
+
+export async function request<S extends z.ZodType>(method: string, path: string, opts: Options<S> = {}): Promise<z.infer<S>> {
+  const useAuth = opts.auth !== false;
+  let res = await send(method, path, opts.body, useAuth ? (tokens?.accessToken() ?? null) : null, opts.signal);
+  if (res.status === 401 && useAuth && tokens) {
+    const fresh = await tokens.refresh();
+    if (fresh) res = await send(method, path, opts.body, fresh, opts.signal);
+  }
+  if (!res.ok) throw await errorOf(res);
+  if (res.status === 204 || !opts.schema) return undefined as z.infer<S>;
+  const json: unknown = await res.json();
+  const parsed = opts.schema.safeParse(json);
+  if (!parsed.success) throw new ApiError('bad-response', `The server's answer to ${method} ${path} was not understood.`, res.status);
+  return parsed.data;
+}

@@ -1,0 +1,105 @@
+/**
+ * API test harness: the real Express app from createApp() on a loopback port, against the
+ * real Postgres database that `npm test` created (DATABASE_URL), reset before each file.
+ */
+import type { AddressInfo } from 'node:net';
+import type { Server } from 'node:http';
+import { createApp } from '../../server/app';
+import { loadConfig, type Config } from '../../server/config';
+import { createDb, type Db } from '../../server/db';
+import { DEMO_PASSWORD, demoUsers } from '../../server/seed/demo';
+import { hashPassword } from '../../server/services/passwords';
+
+export interface Reply {
+  status: number;
+  headers: Headers;
+  text: string;
+  // eslint-disable-next-line @typescript-eslint/no-explicit-any
+  json: any;
+}
+
+export interface CallOptions {
+  token?: string | undefined;
+  body?: unknown;
+  /** Sent as is, with this content type (for malformed JSON and uploads). */
+  raw?: string | Buffer | FormData;
+  contentType?: string;
+  headers?: Record<string, string>;
+}
+
+export interface Harness {
+  db: Db;
+  config: Config;
+  base: string;
+  call(method: string, path: string, opts?: CallOptions): Promise<Reply>;
+  signIn(email: string, password?: string): Promise<{ accessToken: string; refreshToken: string; user: { id: string; role: string } }>;
+  tokenFor(role: 'technician' | 'supervisor' | 'admin'): Promise<string>;
+  close(): Promise<void>;
+}
+
+let cachedHash: string | undefined;
+
+/** Empties every table but the migration log and puts the three demo users back. */
+export async function resetDatabase(db: Db): Promise<void> {
+  const tables = (await db('pg_tables').where({ schemaname: 'public' }).whereNot('tablename', 'like', 'knex_%').pluck('tablename')) as string[];
+  if (tables.length) await db.raw(`TRUNCATE ${tables.map((t) => `"${t}"`).join(', ')} RESTART IDENTITY CASCADE`);
+  cachedHash ??= await hashPassword(DEMO_PASSWORD);
+  await db('users').insert(demoUsers.map((u) => ({ ...u, password_hash: cachedHash })));
+}
+
+export const emailFor = { technician: demoUsers[0].email, supervisor: demoUsers[1].email, admin: demoUsers[2].email } as const;
+
+export async function startHarness(env: Record<string, string> = {}): Promise<Harness> {
+  const config = loadConfig({ ...process.env, CW_STATIC_DIR: '', ...env });
+  const db = createDb(config.databaseUrl);
+  await resetDatabase(db);
+  const app = createApp({ db, config, log: () => {} });
+  const server: Server = await new Promise((resolve) => {
+    const s = app.listen(0, '127.0.0.1', () => resolve(s));
+  });
+  const base = `http://127.0.0.1:${(server.address() as AddressInfo).port}`;
+
+  async function call(method: string, path: string, opts: CallOptions = {}): Promise<Reply> {
+    const headers: Record<string, string> = { ...(opts.headers ?? {}) };
+    if (opts.token) headers.Authorization = `Bearer ${opts.token}`;
+    let body: string | Buffer | FormData | undefined;
+    if (opts.raw !== undefined) {
+      body = opts.raw;
+      if (opts.contentType) headers['Content-Type'] = opts.contentType;
+    } else if (opts.body !== undefined) {
+      body = JSON.stringify(opts.body);
+      headers['Content-Type'] = 'application/json';
+    }
+    const res = await fetch(base + path, { method, headers, body: body as BodyInit | undefined });
+    const text = await res.text();
+    let json: unknown = undefined;
+    try {
+      json = text ? JSON.parse(text) : undefined;
+    } catch {
+      json = undefined;
+    }
+    return { status: res.status, headers: res.headers, text, json };
+  }
+
+  const tokens = new Map<string, string>();
+  async function signIn(email: string, password = DEMO_PASSWORD) {
+    const res = await call('POST', '/api/auth/sign-in', { body: { email, password } });
+    if (res.status !== 200) throw new Error(`sign-in as ${email} failed: ${res.status} ${res.text}`);
+    return res.json;
+  }
+  async function tokenFor(role: keyof typeof emailFor): Promise<string> {
+    if (!tokens.has(role)) tokens.set(role, (await signIn(emailFor[role])).accessToken);
+    return tokens.get(role)!;
+  }
+  async function close(): Promise<void> {
+    await new Promise<void>((resolve) => server.close(() => resolve()));
+    await db.destroy();
+  }
+  return { db, config, base, call, signIn, tokenFor, close };
+}
+
+export async function countRows(db: Db, ...tables: string[]): Promise<Record<string, number>> {
+  const out: Record<string, number> = {};
+  for (const t of tables) out[t] = Number(((await db(t).count({ n: '*' }).first()) as { n: number }).n);
+  return out;
+}
