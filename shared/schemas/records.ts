@@ -1,0 +1,211 @@
+/**
+ * Records kept by the server: key systems, keys, doors, cores, work orders. A schema and
+ * its type share one name. Write bodies are strict: an unknown field is refused.
+ */
+import { z } from 'zod';
+import { BittingText, Id, IsoDate, IsoDateTime, Name, Text } from './common';
+
+export const KeyLevel = z.enum(['ggm', 'gm', 'master', 'change']);
+export type KeyLevel = z.infer<typeof KeyLevel>;
+export const KeyStatus = z.enum(['active', 'lost', 'retired']);
+export type KeyStatus = z.infer<typeof KeyStatus>;
+export const CoreState = z.enum(['planned', 'loaded', 'checked', 'capped', 'installed', 'retired']);
+export type CoreState = z.infer<typeof CoreState>;
+export const WorkOrderPurpose = z.enum(['new-building', 'lost-key-rekey', 'move', 'maintenance', 'other']);
+export type WorkOrderPurpose = z.infer<typeof WorkOrderPurpose>;
+export const WorkOrderStatus = z.enum(['draft', 'assigned', 'in-progress', 'done', 'cancelled']);
+export type WorkOrderStatus = z.infer<typeof WorkOrderStatus>;
+
+export const purposeLabels: Record<WorkOrderPurpose, string> = {
+  'new-building': 'New building',
+  'lost-key-rekey': 'Lost-key rekey',
+  move: 'Department move',
+  maintenance: 'Maintenance',
+  other: 'Other',
+};
+export const levelLabels: Record<KeyLevel, string> = { ggm: 'Great-grand master', gm: 'Grand master', master: 'Master', change: 'Change key' };
+
+// ---- profiles -------------------------------------------------------------------------
+const Sizes = z.array(z.number().int().min(0).max(30)).min(1, { error: 'stock at least one size' }).max(40);
+export const ProfileInput = z.strictObject({
+  id: z.string().trim().regex(/^[a-z0-9-]{3,40}$/, { error: 'an id is 3 to 40 lower-case letters, digits and dashes' }),
+  label: Name(120, 'a descriptive name'),
+  chambers: z.number().int().min(5, { error: 'at least 5 chambers' }).max(8, { error: 'at most 8 chambers' }),
+  minDepth: z.number().int().min(0).max(15),
+  maxDepth: z.number().int().min(1).max(15),
+  stackUnits: z.number().int().min(5).max(60),
+  sleeveUnits: z.number().int().min(1).max(30),
+  minWaferUnits: z.number().int().min(1).max(10),
+  step: z.number().int().min(1).max(3),
+  maxAdjacentCut: z.number().int().min(1).max(15),
+  bottomPins: Sizes,
+  wafers: Sizes,
+  topPins: Sizes,
+  chamberOneAt: z.enum(['back', 'front']),
+});
+export type ProfileInput = z.infer<typeof ProfileInput>;
+
+// ---- key systems and keys ---------------------------------------------------------------
+export const KeySystemInput = z.strictObject({
+  name: Name(120, 'a name for the key system'),
+  profileId: z.string().trim().min(1, { error: 'choose a profile' }).max(40),
+  control: BittingText,
+  notes: Text(2000, 'notes').optional(),
+});
+export type KeySystemInput = z.infer<typeof KeySystemInput>;
+export const KeySystemUpdate = KeySystemInput.partial();
+export type KeySystemUpdate = z.infer<typeof KeySystemUpdate>;
+
+export const KeySystem = z.object({
+  id: Id,
+  name: z.string(),
+  profileId: z.string(),
+  notes: z.string().nullable(),
+  keyCount: z.number(),
+  coreCount: z.number(),
+  createdAt: z.string(),
+  updatedAt: z.string(),
+  /** Present only when the caller asked to see bittings (an audited action). */
+  control: z.string().optional(),
+});
+export type KeySystem = z.infer<typeof KeySystem>;
+
+export const KeySymbol = z.string().trim().regex(/^[A-Z0-9][A-Z0-9-]{0,23}$/i, { error: 'a key symbol is 1 to 24 letters, digits or dashes, like AA1' });
+export const KeyInput = z.strictObject({
+  symbol: KeySymbol,
+  level: KeyLevel,
+  parentId: Id.nullable().optional(),
+  bitting: BittingText,
+  status: KeyStatus.default('active'),
+  crossKeyed: z.boolean().default(false),
+  notes: Text(500, 'notes').optional(),
+});
+export type KeyInput = z.infer<typeof KeyInput>;
+export const KeyUpdate = z.strictObject({
+  symbol: KeySymbol.optional(),
+  status: KeyStatus.optional(),
+  parentId: Id.nullable().optional(),
+  notes: Text(500, 'notes').optional(),
+  bitting: BittingText.optional(),
+});
+export type KeyUpdate = z.infer<typeof KeyUpdate>;
+
+export const Key = z.object({
+  id: Id,
+  keySystemId: Id,
+  symbol: z.string(),
+  level: KeyLevel,
+  parentId: Id.nullable(),
+  status: KeyStatus,
+  crossKeyed: z.boolean(),
+  notes: z.string().nullable(),
+  /** Present only when the caller asked to see bittings (an audited action). */
+  bitting: z.string().optional(),
+});
+export type Key = z.infer<typeof Key>;
+
+// ---- doors -----------------------------------------------------------------------------
+export const DoorInput = z.strictObject({
+  site: Name(80, 'the site'),
+  building: Name(80, 'the building'),
+  floor: Text(20, 'the floor').default(''),
+  room: Text(40, 'the room').default(''),
+  label: z.string().trim().regex(/^[A-Za-z0-9][A-Za-z0-9 ._/-]{0,39}$/, { error: 'a door label is 1 to 40 letters, digits, spaces, dots, dashes or slashes' }),
+  fireRated: z.boolean().default(false),
+  keySystemId: Id.nullable().optional(),
+  keyId: Id.nullable().optional(),
+  notes: Text(1000, 'notes').optional(),
+});
+export type DoorInput = z.infer<typeof DoorInput>;
+export const DoorUpdate = DoorInput.partial();
+
+export const Door = z.object({
+  id: Id,
+  site: z.string(),
+  building: z.string(),
+  floor: z.string(),
+  room: z.string(),
+  label: z.string(),
+  fireRated: z.boolean(),
+  keySystemId: Id.nullable(),
+  keyId: Id.nullable(),
+  keySymbol: z.string().nullable(),
+  notes: z.string().nullable(),
+  currentCoreTag: z.string().nullable(),
+});
+export type Door = z.infer<typeof Door>;
+
+// ---- cores -----------------------------------------------------------------------------
+export const CoreInput = z.strictObject({
+  keySystemId: Id,
+  doorId: Id.nullable().optional(),
+  /** Key ids that must turn the plug: the change key and its masters, and any cross-keyed key. */
+  operatingKeyIds: z.array(Id).min(1, { error: 'a core needs at least one operating key' }).max(12),
+  tag: z.string().trim().regex(/^[A-Z0-9-]{3,24}$/, { error: 'a tag is 3 to 24 capital letters, digits or dashes' }).optional(),
+});
+export type CoreInput = z.infer<typeof CoreInput>;
+export const CoreUpdate = z.strictObject({
+  doorId: Id.nullable().optional(),
+  state: z.literal('retired').optional(),
+});
+
+export const Core = z.object({
+  id: Id,
+  tag: z.string(),
+  keySystemId: Id,
+  doorId: Id.nullable(),
+  doorLabel: z.string().nullable(),
+  state: CoreState,
+  operatingKeyIds: z.array(Id),
+  operatingSymbols: z.array(z.string()),
+  updatedAt: z.string(),
+});
+export type Core = z.infer<typeof Core>;
+
+// ---- work orders -----------------------------------------------------------------------
+export const WorkOrderDoor = z.strictObject({
+  doorId: Id,
+  /** The change key the door takes; its masters are added from the key's parents. */
+  keyId: Id,
+});
+export const WorkOrderInput = z.strictObject({
+  title: Name(120, 'a title'),
+  purpose: WorkOrderPurpose,
+  keySystemId: Id,
+  assigneeId: Id.nullable().optional(),
+  dueDate: IsoDate.nullable().optional(),
+  notes: Text(2000, 'notes').optional(),
+  doors: z.array(WorkOrderDoor).min(1, { error: 'choose at least one door' }).max(500, { error: 'at most 500 doors in one work order' }),
+});
+export type WorkOrderInput = z.infer<typeof WorkOrderInput>;
+export const WorkOrderUpdate = z.strictObject({
+  title: Name(120, 'a title').optional(),
+  purpose: WorkOrderPurpose.optional(),
+  assigneeId: Id.nullable().optional(),
+  dueDate: IsoDate.nullable().optional(),
+  notes: Text(2000, 'notes').optional(),
+  status: z.enum(['draft', 'assigned', 'cancelled']).optional(),
+});
+export type WorkOrderUpdate = z.infer<typeof WorkOrderUpdate>;
+
+export const WorkOrder = z.object({
+  id: Id,
+  number: z.number(),
+  title: z.string(),
+  purpose: WorkOrderPurpose,
+  keySystemId: Id,
+  keySystemName: z.string(),
+  assigneeId: Id.nullable(),
+  assigneeName: z.string().nullable(),
+  dueDate: z.string().nullable(),
+  status: WorkOrderStatus,
+  notes: z.string().nullable(),
+  coreCount: z.number(),
+  doneCount: z.number(),
+  failedCount: z.number(),
+  hasFireRated: z.boolean(),
+  createdAt: z.string(),
+});
+export type WorkOrder = z.infer<typeof WorkOrder>;
+
+export const Timestamps = { createdAt: IsoDateTime, updatedAt: IsoDateTime };

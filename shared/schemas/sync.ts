@@ -1,0 +1,95 @@
+/**
+ * Sync: the tablet's outbox sends finished work; the server answers per record.
+ * A record's clientId is made on the tablet (UUID) and is the idempotency key: the same
+ * record sent again is a duplicate, never a second row; the same clientId with another
+ * payload is refused (conflict) and the stored row stays as it was.
+ */
+import { z } from 'zod';
+import { Id, IsoDateTime, Text } from './common';
+
+export const BenchStepKind = z.enum(['bottom', 'master', 'buildUp', 'top', 'level-check', 'springs', 'cap']);
+export type BenchStepKind = z.infer<typeof BenchStepKind>;
+
+export const BenchStep = z.strictObject({
+  kind: BenchStepKind,
+  chamber: z.number().int().min(1).max(8).nullable(),
+  size: z.number().int().min(0).max(30).nullable(),
+  at: IsoDateTime,
+  /** true when the technician redid this chamber: the earlier steps stay in the record. */
+  redo: z.boolean().optional(),
+});
+export type BenchStep = z.infer<typeof BenchStep>;
+
+export const KeyCheckResult = z.strictObject({
+  phase: z.enum(['before-cap', 'after-cap']),
+  role: z.enum(['change', 'master', 'cross', 'control', 'must-not-turn']),
+  symbol: z.string().min(1).max(24),
+  result: z.enum(['passed', 'failed']),
+  /** What happened, asked for on a failure. */
+  note: Text(500, 'the note').optional(),
+  at: IsoDateTime,
+});
+export type KeyCheckResult = z.infer<typeof KeyCheckResult>;
+
+export const Attempt = z.strictObject({
+  n: z.number().int().min(1).max(50),
+  startedAt: IsoDateTime,
+  finishedAt: IsoDateTime,
+  result: z.enum(['passed', 'failed']),
+  steps: z.array(BenchStep).max(400),
+  keyChecks: z.array(KeyCheckResult).max(100),
+});
+export type Attempt = z.infer<typeof Attempt>;
+
+export const CompletionRecord = z.strictObject({
+  clientId: Id,
+  kind: z.literal('completion'),
+  coreId: Id,
+  workOrderId: Id,
+  startedAt: IsoDateTime,
+  finishedAt: IsoDateTime,
+  /** passed: built, checked, capped and checked again; failed: set aside for a rebuild. */
+  result: z.enum(['passed', 'failed']),
+  attempts: z.array(Attempt).min(1, { error: 'a completion has at least one attempt' }).max(50),
+  notes: Text(2000, 'the notes').optional(),
+});
+export type CompletionRecord = z.infer<typeof CompletionRecord>;
+
+export const InstallRecord = z.strictObject({
+  clientId: Id,
+  kind: z.literal('install'),
+  coreId: Id,
+  doorId: Id,
+  /** The tag of the core taken out of the door, when there was one. */
+  removedCoreTag: z.string().trim().max(24).nullable(),
+  installedAt: IsoDateTime,
+  notes: Text(1000, 'the notes').optional(),
+});
+export type InstallRecord = z.infer<typeof InstallRecord>;
+
+export const SyncRecord = z.discriminatedUnion('kind', [CompletionRecord, InstallRecord], { error: "kind must be 'completion' or 'install'" });
+export type SyncRecord = z.infer<typeof SyncRecord>;
+
+export const MAX_SYNC_RECORDS = 100;
+/** Records are checked one by one, so one bad record never stops the others. */
+export const SyncRequest = z.strictObject({
+  deviceId: Id,
+  records: z.array(z.unknown()).min(1, { error: 'send at least one record' }).max(MAX_SYNC_RECORDS, { error: `send at most ${MAX_SYNC_RECORDS} records per request` }),
+});
+export type SyncRequest = z.infer<typeof SyncRequest>;
+
+export const SyncRejection = z.object({
+  clientId: z.string().nullable(),
+  index: z.number(),
+  error: z.object({ code: z.string(), message: z.string(), details: z.array(z.object({ field: z.string().optional(), message: z.string() })).optional() }),
+});
+export type SyncRejection = z.infer<typeof SyncRejection>;
+
+export const SyncResponse = z.object({
+  accepted: z.array(z.string()),
+  duplicates: z.array(z.string()),
+  rejected: z.array(SyncRejection),
+  /** Set when an administrator revoked this device: the tablet must wipe its packets. */
+  deviceRevoked: z.boolean().optional(),
+});
+export type SyncResponse = z.infer<typeof SyncResponse>;
