@@ -1,4 +1,4 @@
-// Sign-in, tokens and sessions. Cases A1, A2 and A6 of ../shared/design/reliability.md.
+// Sign-in, tokens and sessions. Cases A1, A-2 and A6 of ../shared/design/reliability.md.
 import { SignJWT, base64url } from 'jose';
 import { afterAll, beforeAll, describe, expect, test } from 'vitest';
 import { countRows, emailFor, startHarness, type Harness } from './harness';
@@ -51,7 +51,7 @@ describe('POST /api/auth/sign-in', () => {
     expect(res.json.error.message).toMatch(/remove "role"/);
   });
 
-  test('a disabled account cannot sign in, and its open sessions end at once (A2)', async () => {
+  test('a disabled account cannot sign in, and its open sessions end at once (case A-2)', async () => {
     const { accessToken } = await h.signIn(emailFor.admin);
     await h.db('users').where({ email: emailFor.admin }).update({ active: false });
     try {
@@ -133,7 +133,7 @@ describe('access tokens (A1: RFC 8725, jose)', () => {
   });
 });
 
-describe('refresh and sign-out (A2)', () => {
+describe('refresh and sign-out (case A-2)', () => {
   test('refresh rotates the refresh token; the old one, presented again, ends the session', async () => {
     const first = await h.signIn(emailFor.supervisor);
     const r1 = await h.call('POST', '/api/auth/refresh', { body: { refreshToken: first.refreshToken } });

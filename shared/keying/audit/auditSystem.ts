@@ -1,0 +1,44 @@
+import { readBitting } from '../bitting';
+import type { Profile } from '../types';
+import { accessIndex } from './accessIndexFinder';
+import { accessFindings } from './accessFindings';
+import { buildContext } from './context';
+import { coreFindings } from './coreFindings';
+import { exposureFinding } from './exposure';
+import type { AuditFinders } from './finders';
+import { finding, sortFindings, type Ranked } from './format';
+import { keyFindings } from './keyFindings';
+import type { AuditFinding, AuditInput } from './types';
+
+/**
+ * Audits a whole system with the given searches. Exposed so a baseline (the all-pairs
+ * audit in bench/) can run the same checks with its own searches and be compared.
+ */
+export function auditSystemWith(profile: Profile, system: AuditInput, finders: AuditFinders): AuditFinding[] {
+  const ctx = buildContext(profile, system);
+  if (!ctx) {
+    const reading = readBitting(profile, system.control);
+    return [finding('bad-bitting', 0, {
+      message: `Control key: ${reading.ok ? '' : reading.message}`,
+      advice: 'Correct the control key first: no core can be pinned, so nothing else was checked.',
+    }).finding];
+  }
+  const ranked: Ranked[] = [
+    ...keyFindings(ctx, finders.closeChangeKeys(ctx)),
+    ...coreFindings(ctx),
+    ...accessFindings(ctx, finders.keysTurning(ctx)),
+  ];
+  const exposure = exposureFinding(ctx);
+  if (exposure) ranked.push(exposure);
+  return sortFindings(ranked);
+}
+
+/**
+ * Every problem in a system, errors first: unintended access, intended keys that fail,
+ * unbuildable cores, large openings counts, duplicate and too-close keys, control-key
+ * problems, cut-rule breaks, and the rights-amplification summary. Findings name keys by
+ * symbol (with ids beside) and cores by id.
+ */
+export function auditSystem(profile: Profile, system: AuditInput): AuditFinding[] {
+  return auditSystemWith(profile, system, accessIndex);
+}

@@ -1,0 +1,24 @@
+import type { AuditContext } from './context';
+
+/** Change keys that all agree except in one position (they differ in fewer than 2). */
+export interface CloseGroup {
+  /** 0-based position they differ in. */
+  position: number;
+  /** Key indexes, ascending; at least two distinct bittings among them. */
+  keys: number[];
+}
+
+/**
+ * The two searches that decide the audit's cost. The indexed audit and the all-pairs
+ * baseline plug in different ones and must return the same, in the same order:
+ * `keysTurning` ascending key indexes per core; `closeChangeKeys` sorted by
+ * (first key, position).
+ */
+export interface AuditFinders {
+  keysTurning(ctx: AuditContext): number[][];
+  closeChangeKeys(ctx: AuditContext): CloseGroup[];
+}
+
+export function sortCloseGroups(groups: CloseGroup[]): CloseGroup[] {
+  return groups.sort((a, b) => (a.keys[0] as number) - (b.keys[0] as number) || a.position - b.position);
+}

@@ -1,0 +1,59 @@
+import { auditFindingCodes, type AuditFindingCode } from '../codes';
+import type { AuditContext } from './context';
+import type { AuditFinding, FindingSeverity } from './types';
+
+/** A finding plus the index it sorts by within its code (a key's or a core's position). */
+export interface Ranked {
+  finding: AuditFinding;
+  order: number;
+}
+
+export function finding(
+  code: AuditFindingCode,
+  order: number,
+  parts: Omit<AuditFinding, 'code' | 'severity'>,
+): Ranked {
+  return { finding: { code, severity: auditFindingCodes[code].severity, ...parts }, order };
+}
+
+const severityRank: Record<FindingSeverity, number> = { error: 0, warning: 1, info: 2 };
+const codeRank = new Map(Object.keys(auditFindingCodes).map((code, i) => [code, i]));
+
+/** Errors first, then warnings, then information; within those by code, then system order. */
+export function sortFindings(ranked: Ranked[]): AuditFinding[] {
+  return ranked
+    .sort((a, b) =>
+      severityRank[a.finding.severity] - severityRank[b.finding.severity] ||
+      (codeRank.get(a.finding.code) ?? 0) - (codeRank.get(b.finding.code) ?? 0) ||
+      a.order - b.order ||
+      (a.finding.message < b.finding.message ? -1 : a.finding.message > b.finding.message ? 1 : 0))
+    .map((r) => r.finding);
+}
+
+/** "A, B, C and 4 more": long lists stay readable; the finding carries the full list. */
+export function nameList(names: readonly string[], max = 5): string {
+  if (names.length <= max) {
+    return names.length <= 1 ? (names[0] ?? '') : `${names.slice(0, -1).join(', ')} and ${names[names.length - 1]}`;
+  }
+  return `${names.slice(0, max).join(', ')} and ${names.length - max} more`;
+}
+
+export function keyRefs(ctx: AuditContext, keys: readonly number[]): { keys: string[]; keyIds: string[] } {
+  return {
+    keys: keys.map((k) => ctx.system.keys[k]?.symbol ?? ''),
+    keyIds: keys.map((k) => ctx.system.keys[k]?.id ?? ''),
+  };
+}
+
+export function coreName(ctx: AuditContext, c: number): string {
+  const core = ctx.system.cores[c];
+  return core?.label ?? core?.id ?? '';
+}
+
+export function coreIds(ctx: AuditContext, cores: readonly number[]): string[] {
+  return cores.map((c) => ctx.system.cores[c]?.id ?? '');
+}
+
+export function plural(n: number, one: string, many = `${one}s`): string {
+  return `${n.toLocaleString('en-US')} ${n === 1 ? one : many}`;
+}

@@ -1,0 +1,87 @@
+import { readBitting } from '../bitting';
+import { macsBreak, sameProgression } from '../rules';
+import type { AuditContext } from './context';
+import type { CloseGroup } from './finders';
+import { coreName, finding, keyRefs, nameList, plural, type Ranked } from './format';
+
+/** Findings about keys and references on their own: readability, duplicates, cut rules. */
+export function keyFindings(ctx: AuditContext, close: CloseGroup[]): Ranked[] {
+  const out: Ranked[] = [];
+  const { profile, system, depths } = ctx;
+
+  system.keys.forEach((key, k) => {
+    if (depths[k]) return;
+    const reading = readBitting(profile, key.bitting);
+    out.push(finding('bad-bitting', k, {
+      message: `Key ${key.symbol}: ${reading.ok ? '' : reading.message}`,
+      advice: 'Correct the bitting in the key record; until then the key is left out of every other check.',
+      ...keyRefs(ctx, [k]),
+    }));
+  });
+  for (const [k, ids] of ctx.unknownCores) {
+    out.push(finding('unknown-core', k, {
+      message: `Key ${system.keys[k]?.symbol ?? ''} lists ${plural(ids.length, 'core')} not in the system: ${nameList(ids)}.`,
+      advice: 'Add the cores to the system or take them off the key’s record.',
+      ...keyRefs(ctx, [k]), cores: ids,
+    }));
+  }
+  for (const [c, ids] of ctx.unknownKeys) {
+    out.push(finding('unknown-key', c, {
+      message: `Core ${coreName(ctx, c)} lists ${plural(ids.length, 'key')} not in the system: ${nameList(ids)}; ${ids.length === 1 ? 'it is' : 'they are'} left out of its pinning.`,
+      advice: 'Add the keys to the system or take them off the core’s list.',
+      cores: [system.cores[c]?.id ?? ''], data: { keys: ids.length },
+    }));
+  }
+
+  const byBitting = new Map<string, number[]>();
+  for (const k of ctx.validKeys) {
+    const id = (depths[k] as number[]).join('');
+    const list = byBitting.get(id);
+    if (list) list.push(k);
+    else byBitting.set(id, [k]);
+  }
+  for (const keys of byBitting.values()) {
+    if (keys.length < 2) continue;
+    const refs = keyRefs(ctx, keys);
+    out.push(finding('duplicate-bitting', keys[0] as number, {
+      message: `Keys ${nameList(refs.keys)} have the same bitting: each operates every core the others do.`,
+      advice: 'Give each symbol its own bitting, or keep one symbol and record the others as copies of it.',
+      ...refs,
+    }));
+  }
+
+  for (const group of close) {
+    const refs = keyRefs(ctx, group.keys);
+    out.push(finding('change-keys-too-close', group.keys[0] as number, {
+      message: `Change keys ${nameList(refs.keys)} differ only in chamber ${group.position + 1}: a worn key or a slightly miscut one may work the other doors.`,
+      advice: 'Plan change keys at least two positions apart (for example, progress two positions together), or accept and record the risk.',
+      ...refs, chambers: [group.position + 1],
+    }));
+  }
+
+  const top = ctx.topMaster >= 0 ? (depths[ctx.topMaster] as number[]) : null;
+  for (const k of ctx.validKeys) {
+    const key = depths[k] as number[];
+    const symbol = system.keys[k]?.symbol ?? '';
+    if (top && profile.step === 2) {
+      const off: number[] = [];
+      key.forEach((d, i) => { if (!sameProgression(profile, d, top[i] as number)) off.push(i + 1); });
+      if (off.length > 0) {
+        out.push(finding('parity-broken', k, {
+          message: `Key ${symbol} breaks the top master’s parity in chamber${off.length === 1 ? '' : 's'} ${off.join(', ')}: a core it shares with a key of the other parity needs an odd-sized wafer there.`,
+          advice: 'Under two-step progression cut every key of the system to the top master’s parity (odd or even) in each chamber.',
+          ...keyRefs(ctx, [k]), chambers: off,
+        }));
+      }
+    }
+    const i = macsBreak(profile, key);
+    if (i >= 0) {
+      out.push(finding('macs-exceeded', k, {
+        message: `Key ${symbol}: cuts in chambers ${i + 1} and ${i + 2} differ by ${Math.abs((key[i] as number) - (key[i + 1] as number))}, more than the ${profile.maxAdjacentCut} this profile allows.`,
+        advice: 'Change one of the two cuts; a key that breaks the maximum adjacent cut may not cut cleanly or work smoothly.',
+        ...keyRefs(ctx, [k]), chambers: [i + 1, i + 2],
+      }));
+    }
+  }
+  return out;
+}

@@ -1,0 +1,57 @@
+/**
+ * Every code the keying engine can report, with what it means in shop words. The UI and
+ * the server look messages up here so a code always reads the same wherever it shows.
+ */
+
+export const keyingIssueCodes = {
+  // Reading a bitting (parseBitting throws these; pinCore reports them as errors).
+  'bitting-length': { severity: 'error', meaning: 'The bitting has the wrong number of cuts for this profile.' },
+  'bitting-not-digit': { severity: 'error', meaning: 'The bitting holds something other than a digit.' },
+  'depth-out-of-range': { severity: 'error', meaning: 'A cut is deeper or shallower than the profile allows.' },
+  // Building a chart.
+  'no-operating-keys': { severity: 'error', meaning: 'No key was given that must turn the plug.' },
+  'wafer-too-thin': { severity: 'error', meaning: 'A wafer would be thinner than the thinnest one the profile trusts.' },
+  'size-not-stocked': { severity: 'error', meaning: 'A part size is not stocked and cannot be made from two stocked wafers.' },
+  'stack-mismatch': { severity: 'error', meaning: 'A chamber’s parts do not add up to the stack height.' },
+  'control-equals-operating': { severity: 'error', meaning: 'The control key is also listed as an operating key; it would release the core.' },
+  'control-turns-plug': { severity: 'error', meaning: 'The control key lines up the operating shear line in every chamber; it would turn the plug.' },
+  'operating-releases-core': { severity: 'error', meaning: 'An operating key lines up the control shear line in every chamber; it would release the core.' },
+  'control-shares-top-master': { severity: 'warning', meaning: 'The control key has the top master’s depth in some chamber.' },
+  'parity-broken': { severity: 'warning', meaning: 'Depths in one chamber do not keep one parity under a two-step profile.' },
+  'macs-exceeded': { severity: 'warning', meaning: 'Two neighbouring cuts on one key differ by more than the profile’s maximum adjacent cut.' },
+  // Generating change keys.
+  'progress-chamber': { severity: 'error', meaning: 'A chamber to progress is not a chamber of this profile.' },
+  'progress-too-large': { severity: 'error', meaning: 'The progression would list too many keys; set a limit.' },
+  'progress-limit': { severity: 'error', meaning: 'The limit must be a whole number, zero or more.' },
+  // Checking a profile (validateProfile).
+  'profile-chambers': { severity: 'error', meaning: 'A profile has 5 to 8 chambers.' },
+  'profile-depths': { severity: 'error', meaning: 'The depth range must be whole numbers within 0..9, shallowest first.' },
+  'profile-stack': { severity: 'error', meaning: 'Stack height and sleeve do not leave room for every depth and a top pin.' },
+  'profile-wafer': { severity: 'error', meaning: 'The thinnest wafer must be a whole number of units, 1 or more.' },
+  'profile-step': { severity: 'error', meaning: 'The progression step must be 1 or 2.' },
+  'profile-macs': { severity: 'error', meaning: 'The maximum adjacent cut must be a whole number, 1 or more.' },
+  'profile-stock': { severity: 'error', meaning: 'Stocked sizes must be listed, as whole numbers of units.' },
+} as const satisfies Record<string, { severity: 'error' | 'warning'; meaning: string }>;
+
+export type KeyingIssueCode = keyof typeof keyingIssueCodes;
+
+export const auditFindingCodes = {
+  'bad-bitting': { severity: 'error', meaning: 'A key’s bitting cannot be read; the key is left out of the other checks.' },
+  'unknown-key': { severity: 'error', meaning: 'A core lists a key that is not in the system.' },
+  'unknown-core': { severity: 'error', meaning: 'A key lists a core that is not in the system.' },
+  'control-equals-key': { severity: 'error', meaning: 'A key of the system has the control key’s bitting.' },
+  'control-turns-plug': { severity: 'error', meaning: 'The control key would turn the plug of these cores.' },
+  'core-unbuildable': { severity: 'error', meaning: 'A core cannot be pinned as planned.' },
+  'duplicate-bitting': { severity: 'error', meaning: 'Several key symbols share one bitting.' },
+  'unintended-access': { severity: 'error', meaning: 'A key turns cores it is not meant to operate.' },
+  'intended-key-fails': { severity: 'error', meaning: 'A key does not turn a core it is meant to operate.' },
+  'records-disagree': { severity: 'warning', meaning: 'The key’s list of cores and the cores’ lists of keys disagree.' },
+  'openings-over-threshold': { severity: 'warning', meaning: 'A core accepts more bittings than the system’s threshold.' },
+  'change-keys-too-close': { severity: 'warning', meaning: 'Change keys differ in fewer than two positions.' },
+  'control-shares-top-master': { severity: 'warning', meaning: 'The control key has the top master’s depth in some chamber.' },
+  'parity-broken': { severity: 'warning', meaning: 'A key does not keep the top master’s parity in some position.' },
+  'macs-exceeded': { severity: 'warning', meaning: 'A key breaks the maximum adjacent cut specification.' },
+  'rights-amplification': { severity: 'info', meaning: 'How far one change key and its core expose the top master.' },
+} as const satisfies Record<string, { severity: 'error' | 'warning' | 'info'; meaning: string }>;
+
+export type AuditFindingCode = keyof typeof auditFindingCodes;

@@ -1,0 +1,20 @@
+/**
+ * The keying engine: pinning charts, key checks, progression, system audit and tray.
+ * Pure TypeScript so the tablet computes offline exactly what the server computes.
+ */
+export type { ChamberPinning, CoreKeys, CorePinning, PinningIssue, Profile, Severity } from './types';
+export { auditFindingCodes, keyingIssueCodes } from './codes';
+export type { AuditFindingCode, KeyingIssueCode } from './codes';
+export { KeyingError, hasErrors } from './errors';
+export { builtInProfiles, chambersBackToFront } from './profiles';
+export { validateProfile } from './validateProfile';
+export type { ProfileProblem } from './validateProfile';
+export { formatBitting, parseBitting, readBitting } from './bitting';
+export type { BittingReading } from './bitting';
+export { pinCore } from './pinCore';
+export { keyOperates } from './keyOperates';
+export { maxProgressionWithoutLimit, progressKeys } from './progressKeys';
+export type { ProgressOptions } from './progressKeys';
+export { partKinds, trayFor } from './tray';
+export type { PartCounts, PartKind, SizeCount, Tray, TrayChamber, TwoWaferBuildUp } from './tray';
+export * from './audit';

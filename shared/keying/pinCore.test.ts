@@ -1,0 +1,127 @@
+import { describe, expect, test } from 'vitest';
+import { hasErrors } from './errors';
+import { pinCore } from './pinCore';
+import { builtInProfiles } from './profiles';
+import type { Profile } from './types';
+
+const sfic6 = builtInProfiles['sfic-6'] as Profile;
+const sfic7 = builtInProfiles['sfic-7'] as Profile;
+const same = (d: number, n = 7): string => String(d).repeat(n);
+
+describe('pinCore: the usual .0125 in SFIC formulas', () => {
+  // The keying primer's worked example (our own, not from a published table): change 2,
+  // master 6, control 4 gives bottom 2, master wafer 4, build-up 8, top 9; total 23.
+  test('primer worked example', () => {
+    const pinning = pinCore(sfic7, { operating: [same(2), same(6)], control: same(4) });
+    expect(pinning.issues).toEqual([]);
+    expect(pinning.chambers[0]).toEqual({ chamber: 1, depths: [2, 6], bottom: 2, masters: [4], buildUp: [8], top: 9, total: 23 });
+  });
+
+  // top = 13 - control and build-up = control + 10 - deepest operating depth, for stack 23
+  // and sleeve 10 (common practice, no source). Table cases are our own.
+  test.each([
+    // control, change, master, top, buildUp
+    [1, 0, 4, 12, [7]],
+    [3, 2, 8, 10, [5]],
+    [5, 0, 2, 8, [9, 4]], // 13 units: two wafers (see the two-wafer test)
+    [9, 1, 3, 4, [9, 7]],
+    [6, 4, 8, 7, [8]],
+  ])('control %i over depths %i and %i: top %i', (control, change, master, top, buildUp) => {
+    const pinning = pinCore(sfic6, { operating: [same(change, 6), same(master, 6)], control: same(control, 6) });
+    const ch = pinning.chambers[0];
+    expect(ch?.top).toBe(13 - control);
+    expect(ch?.top).toBe(top);
+    expect(ch?.buildUp.reduce((a, b) => a + b, 0)).toBe(control + 10 - Math.max(change, master));
+    expect(ch?.total).toBe(23);
+    expect(ch?.buildUp).toEqual(buildUp);
+  });
+
+  test('the control shear line sits 10 units above the operating one: build-up top = control + 10', () => {
+    const ch = pinCore(sfic7, { operating: ['0246802', '2468024'], control: '3579135' }).chambers;
+    for (const c of ch) {
+      const buildUpTop = c.bottom + c.masters.reduce((a, b) => a + b, 0) + c.buildUp.reduce((a, b) => a + b, 0);
+      expect(buildUpTop).toBe(Number('3579135'[c.chamber - 1]) + 10);
+    }
+  });
+});
+
+describe('pinCore: worked examples of our own', () => {
+  test('three keys in one chamber give two master wafers, shallowest first', () => {
+    // Change 0, master 4, grand master 8 in chamber 1; all agree elsewhere.
+    const pinning = pinCore(sfic6, { operating: ['022222', '422222', '822222'], control: '755555' });
+    expect(pinning.chambers[0]).toMatchObject({ depths: [0, 4, 8], bottom: 0, masters: [4, 4], buildUp: [9], top: 6, total: 23 });
+    expect(pinning.chambers[1]).toMatchObject({ depths: [2], bottom: 2, masters: [], buildUp: [9, 4], top: 8, total: 23 });
+    expect(pinning.openingsCount).toBe(3);
+  });
+
+  test('openings count is the product of distinct depths per chamber', () => {
+    // Chambers with 2, 2, 3, 1, 1, 1 depths: 2 × 2 × 3 = 12.
+    const pinning = pinCore(sfic6, { operating: ['002222', '222222', '224222', '000222'], control: '577777' });
+    expect(pinning.chambers.map((c) => c.depths.length)).toEqual([2, 2, 3, 1, 1, 1]);
+    expect(pinning.openingsCount).toBe(12);
+  });
+
+  test('duplicate operating keys are harmless and reported once', () => {
+    const once = pinCore(sfic6, { operating: ['024680', '224680'], control: '357913' });
+    const twice = pinCore(sfic6, { operating: ['024680', '224680', '024680'], control: '357913' });
+    expect(twice.chambers).toEqual(once.chambers);
+    expect(twice.issues).toEqual(once.issues);
+  });
+
+  test('a build-up over the largest wafer is made from two, seam kept off the operating depths', () => {
+    // Deepest 2, control 7: 15 units. 10 + 5 would put the seam at 12 = 2 + sleeve, so a key
+    // cut 2 there would line up the control line; 9 + 6 puts it at 11, which no operating key reaches.
+    const pinning = pinCore(sfic6, { operating: ['022222', '222222'], control: '777777' });
+    expect(pinning.chambers[0]?.buildUp).toEqual([9, 6]);
+    expect(pinning.chambers[0]?.total).toBe(23);
+    expect(hasErrors(pinning)).toBe(false);
+  });
+
+  test('a build-up of 0 needs no wafer', () => {
+    // Control 0 with deepest operating depth... impossible for the usual profile (sleeve 10 > 9),
+    // so take a custom profile with sleeve 9 where control 0 over depth 9 meets exactly.
+    const tight: Profile = { ...sfic6, sleeveUnits: 9, maxDepth: 9 };
+    const pinning = pinCore(tight, { operating: ['999999', '799999'], control: '000000' });
+    expect(pinning.chambers[1]?.buildUp).toEqual([]);
+    expect(pinning.chambers[1]?.total).toBe(23);
+  });
+});
+
+describe('pinCore: warnings', () => {
+  test('control key sharing the top master’s depth, one warning per chamber', () => {
+    const pinning = pinCore(sfic6, { operating: ['024680', '224680'], control: '235793' });
+    expect(pinning.issues).toEqual([
+      { code: 'control-shares-top-master', severity: 'warning', chamber: 1, message: 'Chamber 1: the control key has the top master’s depth (2) — the usual advice is a control key that differs from the top master in every chamber.' },
+    ]);
+    expect(hasErrors(pinning)).toBe(false);
+  });
+
+  test('the top master can be named instead of taken as the last operating key', () => {
+    const pinning = pinCore(sfic6, { operating: ['224680', '024680'], control: '235793', topMaster: '224680' });
+    expect(pinning.issues.map((i) => [i.code, i.chamber])).toEqual([['control-shares-top-master', 1]]);
+  });
+
+  test('parity broken under two-step progression', () => {
+    const pinning = pinCore(sfic6, { operating: ['024680', '524680'], control: '757913' });
+    expect(pinning.issues).toEqual([
+      { code: 'parity-broken', severity: 'warning', chamber: 1, message: 'Chamber 1: operating depths 0, 5 mix odd and even — under two-step progression every key keeps the top master’s parity here; recut the key that breaks it.' },
+    ]);
+  });
+
+  test('parity is not asked of a one-step profile', () => {
+    const pinning = pinCore({ ...sfic6, step: 1 }, { operating: ['024680', '524680'], control: '757913' });
+    expect(pinning.issues).toEqual([]);
+  });
+
+  test('MACS exceeded by an operating key and by the control key', () => {
+    const macs8: Profile = { ...sfic6, maxAdjacentCut: 8 };
+    const pinning = pinCore(macs8, { operating: ['094680', '294680'], control: '513579' });
+    expect(pinning.issues).toEqual([
+      { code: 'macs-exceeded', severity: 'warning', chamber: 1, key: 0, message: 'Operating key 1: cuts 0 and 9 in chambers 1 and 2 differ by 9, more than the 8 this profile allows — the key may not cut or work; change one of those cuts.' },
+    ]);
+    const control = pinCore(macs8, { operating: ['024680', '224680'], control: '091357' });
+    expect(control.issues).toEqual([
+      { code: 'macs-exceeded', severity: 'warning', chamber: 1, message: 'Control key: cuts 0 and 9 in chambers 1 and 2 differ by 9, more than the 8 this profile allows — the key may not cut or work; change one of those cuts.' },
+    ]);
+  });
+});

@@ -1,0 +1,105 @@
+import fc from 'fast-check';
+import { describe, expect, test } from 'vitest';
+import { progressKeys } from './progressKeys';
+import { builtInProfiles } from './profiles';
+import { allBittings, text } from './testing/arbitraries';
+import type { Profile } from './types';
+
+const sfic6 = builtInProfiles['sfic-6'] as Profile;
+const sfic7 = builtInProfiles['sfic-7'] as Profile;
+
+describe('progressKeys: published and derived counts', () => {
+  // Two-step total position progression of 6 positions, depths 0..9: 4 depths per position
+  // besides the top master's, 4^6 = 4,096 (Locksmith Ledger, "The Concepts and Mechanics
+  // of Master Keying", Dec 2004).
+  test('4^6 = 4,096 change keys for six progressed positions', () => {
+    expect(progressKeys(sfic6, { topMaster: '246802', progress: [1, 2, 3, 4, 5, 6] })).toHaveLength(4096);
+  });
+
+  // The same rule over 7 positions: 4^7 = 16,384 (our arithmetic from the rule above).
+  test('4^7 = 16,384 for seven', () => {
+    const keys = progressKeys(sfic7, { topMaster: '1357913', progress: [1, 2, 3, 4, 5, 6, 7] });
+    expect(keys).toHaveLength(16384);
+    expect(new Set(keys).size).toBe(16384);
+  });
+});
+
+describe('progressKeys: worked examples of our own', () => {
+  test('ascending, last progressed chamber fastest; other chambers keep the top master', () => {
+    const keys = progressKeys(sfic6, { topMaster: '246802', progress: [5, 6] });
+    expect(keys.slice(0, 5)).toEqual(['246820', '246824', '246826', '246828', '246840']);
+    expect(keys).toHaveLength(16);
+    expect(keys.every((k) => k.startsWith('2468'))).toBe(true);
+  });
+
+  test('drops the control key and keys that break the maximum adjacent cut', () => {
+    const all = progressKeys(sfic6, { topMaster: '246802', progress: [5, 6] });
+    const noControl = progressKeys(sfic6, { topMaster: '246802', progress: [5, 6], control: '246824' });
+    expect(noControl).toEqual(all.filter((k) => k !== '246824'));
+    expect(noControl).toHaveLength(15);
+    // MACS 5: chamber 5 sits between an 8 and a 2, so of 2, 4, 6, 8 only 4 and 6 are cuttable.
+    const macs5 = progressKeys({ ...sfic6, maxAdjacentCut: 5 }, { topMaster: '246802', progress: [5] });
+    expect(macs5).toEqual(['246842', '246862']);
+  });
+
+  test('limit caps the count, and the order is deterministic', () => {
+    const opts = { topMaster: '1357913', progress: [7, 3, 3, 5] };
+    const limited = progressKeys(sfic7, { ...opts, limit: 10 });
+    expect(limited).toEqual(progressKeys(sfic7, opts).slice(0, 10));
+    expect(progressKeys(sfic7, { ...opts, limit: 0 })).toEqual([]);
+  });
+
+  test('a one-step profile progresses through every other depth', () => {
+    expect(progressKeys({ ...sfic6, step: 1 }, { topMaster: '246802', progress: [1] })).toHaveLength(9);
+  });
+
+  test('no progressed chamber, no change keys', () => {
+    expect(progressKeys(sfic6, { topMaster: '246802', progress: [] })).toEqual([]);
+  });
+});
+
+describe('progressKeys: bad input', () => {
+  test.each([
+    [{ topMaster: '246802', progress: [7] }, 'progress-chamber', 'Chamber 7 is not on this core; choose chambers 1 to 6 to progress.'],
+    [{ topMaster: '246802', progress: [1], limit: -1 }, 'progress-limit', 'The limit is -1; give a whole number of keys, 0 or more.'],
+    [{ topMaster: '24680', progress: [1] }, 'bitting-length', 'The bitting has 5 cuts; SFIC 6-pin, .0125 in steps, stack 23 takes 6, one digit per chamber, chamber 1 first.'],
+  ])('%j → %s', (opts, code, message) => {
+    expect(() => progressKeys(sfic6, opts)).toThrow(expect.objectContaining({ code, message }));
+  });
+
+  test('progress-too-large without a limit; fine with one', () => {
+    const big: Profile = { ...sfic7, chambers: 8, step: 1 };
+    const opts = { topMaster: '12345678', progress: [1, 2, 3, 4, 5, 6, 7, 8] };
+    expect(() => progressKeys(big, opts)).toThrow(expect.objectContaining({
+      code: 'progress-too-large',
+      message: 'Progressing chambers 1, 2, 3, 4, 5, 6, 7, 8 gives 43,046,721 keys; set a limit of at most 1,000,000.',
+    }));
+    expect(progressKeys(big, { ...opts, limit: 3 })).toHaveLength(3);
+  });
+});
+
+describe('progressKeys: brute force over every 5-chamber bitting', () => {
+  // fast-check picks the top master, the progressed chambers, MACS and step; brute force
+  // keeps every bitting that differs from the top master in exactly the progressed
+  // chambers, by a multiple of the step, within MACS.
+  const five: Profile = { ...sfic6, chambers: 5 };
+  test('progressKeys lists exactly the bittings the rule allows, in ascending order', () => {
+    fc.assert(fc.property(
+      fc.array(fc.integer({ min: 0, max: 9 }), { minLength: 5, maxLength: 5 }),
+      fc.subarray([1, 2, 3, 4, 5], { minLength: 1 }),
+      fc.integer({ min: 4, max: 9 }),
+      fc.constantFrom(1, 2),
+      (top, progress, maxAdjacentCut, step) => {
+        const profile = { ...five, maxAdjacentCut, step };
+        const expected: string[] = [];
+        for (const b of allBittings(profile)) {
+          const ok = b.every((d, i) =>
+            progress.includes(i + 1) ? d !== top[i] && (d - (top[i] as number)) % step === 0 : d === top[i]);
+          const macs = b.every((d, i) => i === 0 || Math.abs(d - (b[i - 1] as number)) <= maxAdjacentCut);
+          if (ok && macs) expected.push(text(b));
+        }
+        expect(progressKeys(profile, { topMaster: text(top), progress })).toEqual(expected);
+      },
+    ), { numRuns: 25 });
+  });
+});
