@@ -8,6 +8,8 @@ import path from 'node:path';
 import { clusterDir, ensureDatabase, startCluster, stopCluster } from './lib/postgres';
 import { createDb, migrateLatest } from '../server/db';
 import { isEmpty, seedDemo } from '../server/seed/demo';
+import { loadConfig } from '../server/config';
+import { createSealer } from '../server/services/secrets';
 
 const root = path.resolve(import.meta.dirname, '..');
 const port = Number(process.env.PORT ?? 8080);
@@ -43,7 +45,7 @@ try {
   const ran = await migrateLatest(db);
   console.log(`[start] migrations: ${ran.length ? ran.join(', ') : 'already current'}`);
   if (await isEmpty(db)) {
-    await seedDemo(db);
+    await seedDemo(db, createSealer(loadConfig({ ...process.env, DATABASE_URL: databaseUrl }).dataKey));
     console.log('[start] demo data seeded');
   }
   await db.destroy();
@@ -55,7 +57,7 @@ try {
   server = spawn(process.execPath, ['--import', 'tsx', path.join(root, 'server/index.ts')], {
     cwd: root,
     stdio: 'inherit',
-    env: { ...process.env, DATABASE_URL: databaseUrl, PORT: String(port), NODE_ENV: process.env.NODE_ENV ?? 'development' },
+    env: { ...process.env, DATABASE_URL: databaseUrl, PORT: String(port), NODE_ENV: process.env.NODE_ENV ?? 'development', CW_FAKE_SMTP: process.env.CW_FAKE_SMTP ?? '1' },
   });
   server.on('exit', (code) => {
     if (!stopping) {

@@ -3,20 +3,36 @@ import express, { type Express } from 'express';
 import helmet from 'helmet';
 import type { Knex } from 'knex';
 import type { Config } from './config';
+import type { Ctx } from './context';
+import type { FakeSmtp } from './dev/fakeSmtp';
 import { errorHandler, notFoundApi } from './errors';
 import { requireAuth } from './middleware/auth';
 import { authRouter } from './routes/auth';
+import { completionsRouter } from './routes/completions';
+import { coresRouter } from './routes/cores';
+import { devRouter } from './routes/dev';
+import { devicesRouter } from './routes/devices';
+import { doorsRouter } from './routes/doors';
 import { healthRouter } from './routes/health';
-import { staticRouter } from './static';
+import { keySystemsRouter } from './routes/keySystems';
+import { syncRouter } from './routes/sync';
 import { usersRouter } from './routes/users';
+import { workOrdersRouter } from './routes/workOrders';
+import { createMailer, type Mailer } from './services/mail';
+import { createSealer } from './services/secrets';
+import { staticRouter } from './static';
 
 export interface AppDeps {
   db: Knex;
   config: Config;
+  mailer?: Mailer;
+  /** The development mailbox; never in production. */
+  smtp?: FakeSmtp | undefined;
   log?: (msg: string, err: unknown) => void;
 }
 
-export function createApp({ db, config, log }: AppDeps): Express {
+export function createApp({ db, config, mailer, smtp, log }: AppDeps): Express {
+  const ctx: Ctx = { db, config, sealer: createSealer(config.dataKey), mailer: mailer ?? createMailer(config) };
   const app = express();
   app.disable('x-powered-by');
   app.set('trust proxy', 'loopback');
@@ -51,12 +67,21 @@ export function createApp({ db, config, log }: AppDeps): Express {
     res.set('Cache-Control', 'no-store');
     next();
   });
-  api.use(express.json({ limit: '100kb' }));
+  // The sync route takes larger batches and parses its own body; every other body is capped at 100 KB.
+  api.use((req, res, next) => (req.path === '/sync' ? next() : express.json({ limit: '100kb' })(req, res, next)));
   api.use(healthRouter(db));
   api.use(authRouter(db, config));
+  if (smtp && config.env !== 'production') api.use(devRouter(smtp));
   api.use(requireAuth(db, config));
-  // Routers for each resource mount here; each states its roles.
-  api.use(usersRouter(db));
+  // Every router below states its roles with allow(...).
+  api.use(usersRouter(ctx));
+  api.use(keySystemsRouter(ctx));
+  api.use(doorsRouter(ctx));
+  api.use(coresRouter(ctx));
+  api.use(workOrdersRouter(ctx));
+  api.use(syncRouter(ctx));
+  api.use(completionsRouter(ctx));
+  api.use(devicesRouter(ctx));
   api.use(notFoundApi);
   app.use('/api', api);
 

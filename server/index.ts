@@ -1,18 +1,25 @@
-/** Starts the HTTP server. Everything else lives in createApp(). */
+/** Starts the HTTP server (and, outside production with CW_FAKE_SMTP=1, the local fake SMTP). */
 import { createApp } from './app';
 import { loadConfig } from './config';
 import { createDb } from './db';
+import { startFakeSmtp, type FakeSmtp } from './dev/fakeSmtp';
 
-const config = loadConfig();
+let config = loadConfig();
+let smtp: FakeSmtp | undefined;
+if (process.env.CW_FAKE_SMTP === '1' && config.env !== 'production') {
+  smtp = await startFakeSmtp(Number(process.env.CW_FAKE_SMTP_PORT ?? 0));
+  config = { ...config, smtp: { host: '127.0.0.1', port: smtp.port } };
+  console.log(`[server] fake SMTP on 127.0.0.1:${smtp.port}; mailbox at /api/dev/mailbox`);
+}
 const db = createDb(config.databaseUrl);
-const app = createApp({ db, config });
+const app = createApp({ db, config, smtp });
 const server = app.listen(config.port, config.host, () => {
   console.log(`[server] Corewright on http://${config.host}:${config.port}`);
 });
 
 function shutdown(signal: string): void {
   console.log(`[server] ${signal}: closing`);
-  server.close(() => void db.destroy().then(() => process.exit(0)));
+  server.close(() => void Promise.all([db.destroy(), smtp?.close()]).then(() => process.exit(0)));
   setTimeout(() => process.exit(0), 5000).unref();
 }
 process.on('SIGTERM', () => shutdown('SIGTERM'));

@@ -7,6 +7,7 @@ export const errorCodes = {
   'malformed-json': { status: 400, title: 'The request body is not valid JSON' },
   unauthenticated: { status: 401, title: 'Please sign in again' },
   forbidden: { status: 403, title: 'Your role does not allow this' },
+  'device-revoked': { status: 403, title: 'This tablet was revoked by an administrator' },
   'not-found': { status: 404, title: 'Not found' },
   conflict: { status: 409, title: 'This conflicts with what is stored' },
   'payload-too-large': { status: 413, title: 'The request is too large' },

@@ -5,3 +5,4 @@ export * from './schemas/common';
 export * from './schemas/records';
 export * from './schemas/packet';
 export * from './schemas/sync';
+export * from './schemas/completions';

@@ -2,7 +2,8 @@ import { Router, type Request } from 'express';
 import { ipKeyGenerator, rateLimit, type RateLimitInfo } from 'express-rate-limit';
 import type { Knex } from 'knex';
 import type { Config } from '../config';
-import { RefreshRequest, SignInRequest } from '../../shared/schemas/auth';
+import { RefreshRequest, SetPasswordRequest, SignInRequest } from '../../shared/schemas/auth';
+import { acceptInvitation } from '../services/users';
 import { HttpError, unauthenticated } from '../errors';
 import { parse } from '../middleware/validate';
 import { actorOf, requireAuth } from '../middleware/auth';
@@ -53,6 +54,14 @@ export function authRouter(db: Knex, config: Config): Router {
       throw new HttpError('unauthenticated', 'Your sign-in has ended; sign in again.');
     }
     res.json({ ...outcome.tokens, user: outcome.user });
+  });
+
+  /** The one-time link from an invitation: choose a password. */
+  router.post('/auth/set-password', limiter, async (req, res) => {
+    const input = parse(SetPasswordRequest, req.body, 'The new password');
+    const { userId, email } = await acceptInvitation(db, input.token, input.password);
+    await audit(db, { id: userId, email, ip: req.ip, userAgent: req.get('user-agent') }, 'user.password-set', { type: 'user', id: userId });
+    res.json({ email });
   });
 
   router.post('/auth/sign-out', requireAuth(db, config), async (req, res) => {

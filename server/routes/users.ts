@@ -1,12 +1,60 @@
 import { Router } from 'express';
-import type { Knex } from 'knex';
-import { allow } from '../middleware/auth';
+import { z } from 'zod';
+import { InviteRequest, UserUpdate } from '../../shared/schemas/auth';
+import { Id, IsoDate } from '../../shared/schemas/common';
+import type { Ctx } from '../context';
+import { actorOf, allow } from '../middleware/auth';
+import { parse } from '../middleware/validate';
+import { audit } from '../services/audit';
+import { mails } from '../services/mail';
+import { inviteUser, listUsers, updateUser } from '../services/users';
 
-export function usersRouter(db: Knex): Router {
-  const router = Router();
-  router.get('/users', allow('admin'), async (_req, res) => {
-    const users = await db('users').orderBy('email').select('id', 'email', 'name', 'role', 'active', 'created_at as createdAt');
-    res.json({ users });
+const AuditQuery = z.strictObject({
+  action: z.string().trim().max(60).optional(),
+  actorId: Id.optional(),
+  targetId: z.string().trim().max(80).optional(),
+  from: IsoDate.optional(),
+  to: IsoDate.optional(),
+  page: z.coerce.number().int().min(1).default(1),
+  pageSize: z.coerce.number().int().min(1).max(200).default(50),
+});
+
+export function usersRouter({ db, mailer, config }: Ctx): Router {
+  const r = Router();
+  r.get('/users', allow('admin'), async (_req, res) => res.json({ users: await listUsers(db) }));
+  /** Active technicians, for assigning work orders. */
+  r.get('/technicians', allow('supervisor', 'admin'), async (_req, res) => {
+    res.json({ technicians: await db('users').where({ active: true }).whereIn('role', ['technician', 'supervisor']).orderBy('name').select('id', 'name', 'email', 'role') });
   });
-  return router;
+  r.post('/users', allow('admin'), async (req, res) => {
+    const input = parse(InviteRequest, req.body, 'The invitation');
+    const { userId, token } = await inviteUser(db, input, req.user!.id);
+    await audit(db, actorOf(req), 'user.invited', { type: 'user', id: userId }, { role: input.role });
+    await mailer.send({ to: input.email, ...mails.invitation(input.name, `${config.publicUrl}/set-password?token=${token}`, req.user!.name) });
+    res.status(201).json({ user: (await listUsers(db)).find((u) => u.id === userId) });
+  });
+  r.patch('/users/:id', allow('admin'), async (req, res) => {
+    const id = parse(Id, req.params.id, 'The user id');
+    const input = parse(UserUpdate, req.body, 'The user');
+    await updateUser(db, id, input, req.user!.id);
+    await audit(db, actorOf(req), input.active === false ? 'user.deactivated' : input.role ? 'user.role-changed' : 'user.updated', { type: 'user', id }, { ...input });
+    res.json({ user: (await listUsers(db)).find((u) => u.id === id) });
+  });
+  r.get('/audit-events', allow('admin'), async (req, res) => {
+    const q = parse(AuditQuery, req.query, 'The filter');
+    const base = db('audit_events');
+    if (q.action) base.where('action', 'like', `${q.action.replace(/[%_\\]/g, (c) => `\\${c}`)}%`);
+    if (q.actorId) base.where('actor_id', q.actorId);
+    if (q.targetId) base.where('target_id', q.targetId);
+    if (q.from) base.where('at', '>=', q.from);
+    if (q.to) base.where('at', '<', db.raw('?::date + 1', [q.to]));
+    const { total } = ((await base.clone().count({ total: '*' })) as { total: number }[])[0]!;
+    const rows = await base
+      .orderBy('id', 'desc')
+      .limit(q.pageSize)
+      .offset((q.page - 1) * q.pageSize)
+      .select('id', 'at', 'actor_id as actorId', 'actor_email as actorEmail', 'action', 'target_type as targetType', 'target_id as targetId', 'ip', 'details');
+    res.json({ rows, total: Number(total), page: q.page, pageSize: q.pageSize });
+  });
+  return r;
 }

@@ -48,3 +48,28 @@ export type Health = z.infer<typeof Health>;
 
 /** Lowest role first: what each role may see in the navigation. */
 export const roleRank: Record<Role, number> = { technician: 0, supervisor: 1, admin: 2 };
+
+export const NewPassword = z
+  .string({ error: 'choose a password' })
+  .min(12, { error: 'a password has at least 12 characters; a short phrase of three or four words works well' })
+  .max(200, { error: 'a password has at most 200 characters' });
+
+export const InviteRequest = z.strictObject({
+  email: Email,
+  name: z.string({ error: 'enter the name' }).trim().min(1, { error: 'enter the name' }).max(120, { error: 'a name has at most 120 characters' }),
+  role: Role,
+});
+export type InviteRequest = z.infer<typeof InviteRequest>;
+
+export const UserUpdate = z.strictObject({
+  role: Role.optional(),
+  active: z.boolean().optional(),
+  name: z.string().trim().min(1).max(120).optional(),
+});
+export type UserUpdate = z.infer<typeof UserUpdate>;
+
+export const SetPasswordRequest = z.strictObject({
+  token: z.string({ error: 'the link is incomplete' }).min(20, { error: 'the link is incomplete' }).max(200),
+  password: NewPassword,
+});
+export type SetPasswordRequest = z.infer<typeof SetPasswordRequest>;

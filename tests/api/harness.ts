@@ -7,8 +7,10 @@ import type { Server } from 'node:http';
 import { createApp } from '../../server/app';
 import { loadConfig, type Config } from '../../server/config';
 import { createDb, type Db } from '../../server/db';
-import { DEMO_PASSWORD, demoUsers } from '../../server/seed/demo';
+import { DEMO_PASSWORD, demoUsers, seedDemo } from '../../server/seed/demo';
 import { hashPassword } from '../../server/services/passwords';
+import { startFakeSmtp, type CapturedMail, type FakeSmtp } from '../../server/dev/fakeSmtp';
+import { createSealer, type Sealer } from '../../server/services/secrets';
 
 export interface Reply {
   status: number;
@@ -30,6 +32,10 @@ export interface CallOptions {
 export interface Harness {
   db: Db;
   config: Config;
+  sealer: Sealer;
+  smtp: FakeSmtp;
+  /** Mail captured by the fake SMTP server for this address, waiting briefly for it to arrive. */
+  mailTo(address: string, count?: number): Promise<CapturedMail[]>;
   base: string;
   call(method: string, path: string, opts?: CallOptions): Promise<Reply>;
   signIn(email: string, password?: string): Promise<{ accessToken: string; refreshToken: string; user: { id: string; role: string } }>;
@@ -39,21 +45,27 @@ export interface Harness {
 
 let cachedHash: string | undefined;
 
-/** Empties every table but the migration log and puts the three demo users back. */
-export async function resetDatabase(db: Db): Promise<void> {
+/**
+ * Empties every table but the migration log, then puts back the three demo users, or with
+ * `demo` the whole invented demo campus (key system, 60 doors, work orders, history).
+ */
+export async function resetDatabase(db: Db, opts: { demo?: Sealer } = {}): Promise<void> {
   const tables = (await db('pg_tables').where({ schemaname: 'public' }).whereNot('tablename', 'like', 'knex_%').pluck('tablename')) as string[];
   if (tables.length) await db.raw(`TRUNCATE ${tables.map((t) => `"${t}"`).join(', ')} RESTART IDENTITY CASCADE`);
+  if (opts.demo) return seedDemo(db, opts.demo);
   cachedHash ??= await hashPassword(DEMO_PASSWORD);
   await db('users').insert(demoUsers.map((u) => ({ ...u, password_hash: cachedHash })));
 }
 
 export const emailFor = { technician: demoUsers[0].email, supervisor: demoUsers[1].email, admin: demoUsers[2].email } as const;
 
-export async function startHarness(env: Record<string, string> = {}): Promise<Harness> {
-  const config = loadConfig({ ...process.env, CW_STATIC_DIR: '', ...env });
+export async function startHarness(env: Record<string, string> = {}, opts: { demo?: boolean } = {}): Promise<Harness> {
+  const smtp = await startFakeSmtp();
+  const config = { ...loadConfig({ ...process.env, CW_STATIC_DIR: '', ...env }), smtp: { host: '127.0.0.1', port: smtp.port } };
   const db = createDb(config.databaseUrl);
-  await resetDatabase(db);
-  const app = createApp({ db, config, log: () => {} });
+  const sealer = createSealer(config.dataKey);
+  await resetDatabase(db, opts.demo ? { demo: sealer } : {});
+  const app = createApp({ db, config, smtp, log: () => {} });
   const server: Server = await new Promise((resolve) => {
     const s = app.listen(0, '127.0.0.1', () => resolve(s));
   });
@@ -93,9 +105,14 @@ export async function startHarness(env: Record<string, string> = {}): Promise<Ha
   }
   async function close(): Promise<void> {
     await new Promise<void>((resolve) => server.close(() => resolve()));
-    await db.destroy();
+    await Promise.all([db.destroy(), smtp.close()]);
   }
-  return { db, config, base, call, signIn, tokenFor, close };
+  async function mailTo(address: string, count = 1): Promise<CapturedMail[]> {
+    const mine = () => smtp.messages.filter((m) => m.to.includes(address.toLowerCase()));
+    for (let i = 0; i < 50 && mine().length < count; i++) await new Promise((r) => setTimeout(r, 100));
+    return mine();
+  }
+  return { db, config, sealer, smtp, mailTo, base, call, signIn, tokenFor, close };
 }
 
 export async function countRows(db: Db, ...tables: string[]): Promise<Record<string, number>> {

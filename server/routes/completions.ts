@@ -1,0 +1,35 @@
+import { stringify } from 'csv-stringify';
+import { Router } from 'express';
+import { CompletionQuery } from '../../shared/schemas/completions';
+import { Id } from '../../shared/schemas/common';
+import type { Ctx } from '../context';
+import { actorOf, allow } from '../middleware/auth';
+import { parse } from '../middleware/validate';
+import { audit } from '../services/audit';
+import { completionRowsForExport, getCompletion, listCompletions } from '../services/completions';
+
+export function completionsRouter({ db }: Ctx): Router {
+  const r = Router();
+  r.get('/completions', allow('supervisor', 'admin'), async (req, res) => {
+    res.json(await listCompletions(db, parse(CompletionQuery, req.query, 'The filter')));
+  });
+  r.get('/completions.csv', allow('supervisor', 'admin'), async (req, res) => {
+    const q = parse(CompletionQuery, req.query, 'The filter');
+    await audit(db, actorOf(req), 'completions.exported', null, { filter: { ...q, page: undefined, pageSize: undefined } });
+    res.set('Content-Type', 'text/csv; charset=utf-8');
+    res.set('Content-Disposition', `attachment; filename="completion-log-${new Date().toISOString().slice(0, 10)}.csv"`);
+    const columns = ['finishedAt', 'startedAt', 'receivedAt', 'coreTag', 'doorLabel', 'workOrderNumber', 'workOrderTitle', 'technicianName', 'result', 'attemptCount', 'failedChecks', 'id'];
+    const csv = stringify({ header: true, columns, cast: { object: (v) => JSON.stringify(v) } });
+    csv.pipe(res);
+    for await (const row of completionRowsForExport(db, q)) {
+      // A cell starting with = + - @ would run as a formula in a spreadsheet: prefix it.
+      const safe = Object.fromEntries(Object.entries(row).map(([k, v]) => [k, typeof v === 'string' && /^[=+\-@\t\r]/.test(v) ? `'${v}` : v]));
+      if (!csv.write(safe)) await new Promise((resolve) => csv.once('drain', resolve));
+    }
+    csv.end();
+  });
+  r.get('/completions/:id', allow('supervisor', 'admin'), async (req, res) => {
+    res.json({ completion: await getCompletion(db, parse(Id, req.params.id, 'The completion id')) });
+  });
+  return r;
+}

@@ -1,0 +1,138 @@
+import { Router } from 'express';
+import multer from 'multer';
+import { z } from 'zod';
+import { auditSystem, progressKeys, KeyingError } from '../../shared/keying';
+import { Id } from '../../shared/schemas/common';
+import { KeyInput, KeySystemInput, KeySystemUpdate, KeyUpdate, ProfileInput } from '../../shared/schemas/records';
+import type { Ctx } from '../context';
+import { badRequest } from '../errors';
+import { actorOf, allow } from '../middleware/auth';
+import { parse } from '../middleware/validate';
+import { audit } from '../services/audit';
+import { importKeys } from '../services/csvImport';
+import { addKeys, createSystem, getSystem, listKeys, listSystems, loadSystem, updateKey, updateSystem } from '../services/keySystems';
+import { createProfile, listProfiles, updateProfile } from '../services/profiles';
+import { auditInputFor } from '../services/systemAudit';
+
+export const upload = multer({ storage: multer.memoryStorage(), limits: { fileSize: 1024 * 1024, files: 1 } });
+const IdParam = z.object({ id: Id });
+const Reveal = z.object({ reveal: z.enum(['0', '1']).optional() });
+const Progression = z.strictObject({
+  progress: z.array(z.number().int().min(1).max(8)).min(1, { error: 'choose at least one chamber to progress' }).max(8),
+  parentId: Id,
+  limit: z.number().int().min(1).max(5000).default(200),
+  symbolPrefix: z.string().trim().regex(/^[A-Z0-9-]{1,20}$/i, { error: 'a symbol prefix is letters, digits or dashes' }).optional(),
+});
+
+export function keySystemsRouter({ db, sealer }: Ctx): Router {
+  const r = Router();
+
+  r.get('/profiles', allow('supervisor', 'admin'), async (_req, res) => res.json({ profiles: await listProfiles(db) }));
+  r.post('/profiles', allow('admin'), async (req, res) => {
+    const profile = await createProfile(db, parse(ProfileInput, req.body, 'The profile'));
+    await audit(db, actorOf(req), 'profile.created', { type: 'profile', id: profile.id });
+    res.status(201).json({ profile });
+  });
+  r.put('/profiles/:pid', allow('admin'), async (req, res) => {
+    const profile = await updateProfile(db, String(req.params.pid), parse(ProfileInput, req.body, 'The profile'));
+    await audit(db, actorOf(req), 'profile.updated', { type: 'profile', id: profile.id });
+    res.json({ profile });
+  });
+
+  r.get('/key-systems', allow('supervisor', 'admin'), async (_req, res) => res.json({ keySystems: await listSystems(db) }));
+  r.post('/key-systems', allow('admin'), async (req, res) => {
+    const id = await createSystem(db, sealer, parse(KeySystemInput, req.body, 'The key system'));
+    await audit(db, actorOf(req), 'key-system.created', { type: 'key-system', id });
+    res.status(201).json({ keySystem: await getSystem(db, id) });
+  });
+  r.get('/key-systems/:id', allow('supervisor', 'admin'), async (req, res) => {
+    const { id } = parse(IdParam, req.params);
+    const { reveal } = parse(Reveal, req.query);
+    const keySystem = await getSystem(db, id);
+    if (reveal === '1') {
+      const system = await loadSystem(db, sealer, id);
+      await audit(db, actorOf(req), 'bittings.viewed', { type: 'key-system', id }, { what: 'control' });
+      return res.json({ keySystem: { ...keySystem, control: system.control } });
+    }
+    res.json({ keySystem });
+  });
+  r.patch('/key-systems/:id', allow('admin'), async (req, res) => {
+    const { id } = parse(IdParam, req.params);
+    const input = parse(KeySystemUpdate, req.body, 'The key system');
+    await updateSystem(db, sealer, id, input);
+    await audit(db, actorOf(req), input.control ? 'key-system.control-changed' : 'key-system.updated', { type: 'key-system', id });
+    res.json({ keySystem: await getSystem(db, id) });
+  });
+
+  r.get('/key-systems/:id/keys', allow('supervisor', 'admin'), async (req, res) => {
+    const { id } = parse(IdParam, req.params);
+    const reveal = parse(Reveal, req.query).reveal === '1';
+    const keys = await listKeys(db, sealer, id, reveal);
+    if (reveal) await audit(db, actorOf(req), 'bittings.viewed', { type: 'key-system', id }, { what: 'keys', count: keys.length });
+    res.json({ keys });
+  });
+  r.post('/key-systems/:id/keys', allow('admin'), async (req, res) => {
+    const { id } = parse(IdParam, req.params);
+    const body = req.body as { keys?: unknown };
+    const inputs = Array.isArray(body?.keys) ? parse(z.array(KeyInput).min(1).max(2000), body.keys, 'The keys') : [parse(KeyInput, req.body, 'The key')];
+    const ids = await addKeys(db, sealer, id, inputs);
+    await audit(db, actorOf(req), 'keys.added', { type: 'key-system', id }, { count: ids.length });
+    res.status(201).json({ ids });
+  });
+  r.patch('/key-systems/:id/keys/:keyId', allow('admin'), async (req, res) => {
+    const { id } = parse(IdParam, req.params);
+    const keyId = parse(Id, req.params.keyId, 'The key id');
+    const input = parse(KeyUpdate, req.body, 'The key');
+    await updateKey(db, sealer, id, keyId, input);
+    await audit(db, actorOf(req), input.bitting ? 'key.bitting-changed' : 'key.updated', { type: 'key', id: keyId }, { status: input.status });
+    res.json({ ok: true });
+  });
+
+  /** A preview of change keys by total position progression under a master; nothing is saved. */
+  r.post('/key-systems/:id/progression', allow('admin'), async (req, res) => {
+    const { id } = parse(IdParam, req.params);
+    const input = parse(Progression, req.body, 'The progression');
+    const system = await loadSystem(db, sealer, id);
+    const parent = system.keys.find((k) => k.id === input.parentId);
+    if (!parent) throw badRequest('The master to progress from is not in this key system.', [{ field: 'parentId', message: 'unknown key' }]);
+    const taken = new Set(system.keys.map((k) => k.bitting));
+    let bittings: string[];
+    try {
+      bittings = progressKeys(system.profile, { topMaster: parent.bitting, progress: input.progress, control: system.control, limit: input.limit + taken.size });
+    } catch (err) {
+      if (err instanceof KeyingError) throw badRequest(err.message, [{ field: 'progress', message: err.message }]);
+      throw err;
+    }
+    const prefix = (input.symbolPrefix ?? parent.symbol).toUpperCase();
+    const used = new Set(system.keys.map((k) => k.symbol));
+    let n = 1;
+    const keys = bittings
+      .filter((b) => !taken.has(b))
+      .slice(0, input.limit)
+      .map((bitting) => {
+        while (used.has(`${prefix}${n}`)) n++;
+        const symbol = `${prefix}${n++}`;
+        return { symbol, level: 'change' as const, parentId: parent.id, bitting };
+      });
+    await audit(db, actorOf(req), 'bittings.viewed', { type: 'key-system', id }, { what: 'progression-preview', count: keys.length });
+    res.json({ keys });
+  });
+
+  r.post('/key-systems/:id/import', allow('admin'), upload.single('file'), async (req, res) => {
+    const { id } = parse(IdParam, req.params);
+    if (!req.file) throw badRequest('Attach the CSV file as the form field "file".', [{ field: 'file', message: 'missing' }]);
+    const commit = req.query.commit === '1';
+    const result = await importKeys(db, sealer, id, req.file.buffer, commit);
+    if (result.committed) await audit(db, actorOf(req), 'keys.imported', { type: 'key-system', id }, { count: result.created });
+    res.status(result.errors.length ? 422 : 200).json(result);
+  });
+
+  r.get('/key-systems/:id/audit', allow('supervisor', 'admin'), async (req, res) => {
+    const { id } = parse(IdParam, req.params);
+    const input = await auditInputFor(db, sealer, id);
+    const findings = auditSystem(input.profile, input.audit);
+    await audit(db, actorOf(req), 'key-system.audited', { type: 'key-system', id }, { findings: findings.length });
+    res.json({ findings, keys: input.audit.keys.length, cores: input.audit.cores.length });
+  });
+  return r;
+}

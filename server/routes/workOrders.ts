@@ -1,0 +1,108 @@
+import { Router } from 'express';
+import { z } from 'zod';
+import { Id } from '../../shared/schemas/common';
+import { WorkOrderInput, WorkOrderUpdate } from '../../shared/schemas/records';
+import type { Ctx } from '../context';
+import { badRequest, forbidden } from '../errors';
+import { actorOf, allow } from '../middleware/auth';
+import { parse } from '../middleware/validate';
+import { audit } from '../services/audit';
+import { mails } from '../services/mail';
+import { buildPacket, createWorkOrder, getWorkOrder, iso, pinningFor, updateWorkOrder, workOrderQuery } from '../services/workOrders';
+import { chainOf, loadSystem } from '../services/keySystems';
+
+const ListQuery = z.strictObject({
+  mine: z.enum(['0', '1']).optional(),
+  status: z.enum(['draft', 'assigned', 'in-progress', 'done', 'cancelled', 'open']).optional(),
+});
+
+export function workOrdersRouter({ db, sealer, mailer, config }: Ctx): Router {
+  const r = Router();
+
+  async function notifyAssignee(workOrderId: string, userId: string): Promise<void> {
+    const wo = await getWorkOrder(db, workOrderId);
+    const user = await db('users').where({ id: userId }).first('email');
+    if (user) await mailer.send({ to: user.email, ...mails.workOrderAssigned({ number: wo.number, title: wo.title, cores: wo.coreCount, due: wo.dueDate, link: `${config.publicUrl}/bench` }) });
+  }
+
+  r.get('/work-orders', allow('technician', 'supervisor', 'admin'), async (req, res) => {
+    const q = parse(ListQuery, req.query, 'The filter');
+    const user = req.user!;
+    // A technician only ever sees their own work orders.
+    const mine = q.mine === '1' || user.role === 'technician';
+    const query = workOrderQuery(db).orderBy([{ column: 'w.due_date', order: 'asc', nulls: 'last' }, { column: 'w.number', order: 'desc' }]);
+    if (mine) query.where('w.assignee_id', user.id).whereNotIn('w.status', ['draft', 'cancelled']);
+    if (q.status === 'open') query.whereNotIn('w.status', ['done', 'cancelled']);
+    else if (q.status) query.where('w.status', q.status);
+    res.json({ workOrders: (await query).map(iso) });
+  });
+
+  r.post('/work-orders', allow('supervisor', 'admin'), async (req, res) => {
+    const input = parse(WorkOrderInput, req.body, 'The work order');
+    const created = await createWorkOrder(db, sealer, input, req.user!.id);
+    await audit(db, actorOf(req), 'work-order.created', { type: 'work-order', id: created.id }, { cores: created.cores, assigneeId: input.assigneeId ?? null });
+    if (input.assigneeId) await notifyAssignee(created.id, input.assigneeId);
+    res.status(201).json({ workOrder: await getWorkOrder(db, created.id) });
+  });
+
+  async function readable(id: string, user: { id: string; role: string }) {
+    const wo = await getWorkOrder(db, id);
+    if (user.role === 'technician' && wo.assigneeId !== user.id) return null;
+    return wo;
+  }
+
+  r.get('/work-orders/:id', allow('technician', 'supervisor', 'admin'), async (req, res) => {
+    const id = parse(Id, req.params.id, 'The work order id');
+    const wo = await readable(id, req.user!);
+    if (!wo) {
+      await audit(db, actorOf(req), 'access.denied', { type: 'work-order', id });
+      throw forbidden('This work order is not assigned to you.');
+    }
+    const cores = await db('work_order_cores as x')
+      .join('cores as c', 'c.id', 'x.core_id')
+      .leftJoin('doors as d', 'd.id', 'c.door_id')
+      .where('x.work_order_id', id)
+      .orderBy('x.position')
+      .select('c.id', 'c.tag', 'c.state', 'd.id as doorId', 'd.label as doorLabel', 'd.fire_rated as fireRated');
+    res.json({ workOrder: wo, cores });
+  });
+
+  r.patch('/work-orders/:id', allow('supervisor', 'admin'), async (req, res) => {
+    const id = parse(Id, req.params.id, 'The work order id');
+    const { assignedTo } = await updateWorkOrder(db, id, parse(WorkOrderUpdate, req.body, 'The work order'));
+    await audit(db, actorOf(req), 'work-order.updated', { type: 'work-order', id }, { assigneeId: assignedTo });
+    if (assignedTo) await notifyAssignee(id, assignedTo);
+    res.json({ workOrder: await getWorkOrder(db, id) });
+  });
+
+  r.get('/work-orders/:id/packet', allow('technician', 'supervisor', 'admin'), async (req, res) => {
+    const id = parse(Id, req.params.id, 'The work order id');
+    const wo = await readable(id, req.user!);
+    if (!wo) {
+      await audit(db, actorOf(req), 'access.denied', { type: 'work-order-packet', id });
+      throw forbidden('This work order is not assigned to you; its packet stays with the assignee.');
+    }
+    const packet = await buildPacket(db, sealer, id);
+    await audit(db, actorOf(req), 'packet.downloaded', { type: 'work-order', id }, { cores: packet.cores.length, deviceId: req.get('x-device-id') ?? null });
+    res.json({ packet });
+  });
+
+  /** Pinning charts for printing (supervisors). Charts show depths: the read is audited. */
+  r.get('/work-orders/:id/charts', allow('supervisor', 'admin'), async (req, res) => {
+    const id = parse(Id, req.params.id, 'The work order id');
+    const packet = await buildPacket(db, sealer, id);
+    await audit(db, actorOf(req), 'bittings.viewed', { type: 'work-order', id }, { what: 'charts' });
+    res.json({ packet });
+  });
+
+  /** Pinning preview for a door and key before a work order is saved. */
+  r.post('/pinning-preview', allow('supervisor', 'admin'), async (req, res) => {
+    const input = parse(z.strictObject({ keySystemId: Id, keyId: Id }), req.body, 'The preview');
+    const system = await loadSystem(db, sealer, input.keySystemId);
+    const chain = chainOf(system.keys, input.keyId);
+    if (!chain.length) throw badRequest('That key is not in this key system.', [{ field: 'keyId', message: 'not in this key system' }]);
+    const pinning = pinningFor(system, chain);
+    res.json({ issues: pinning.issues, openingsCount: pinning.openingsCount, chain: chain.map((k) => k.symbol) });
+  });
+  return r;
+}

@@ -1,0 +1,82 @@
+/** The completion log: what synced from the bench, filtered, sorted and paged in SQL. */
+import type { Knex } from 'knex';
+import type { CompletionQuery } from '../../shared/schemas/completions';
+import { notFound } from '../errors';
+
+const sortColumn: Record<CompletionQuery['sort'], string> = {
+  finishedAt: 'cp.finished_at',
+  startedAt: 'cp.started_at',
+  technician: 'u.name',
+  door: 'd.label',
+  core: 'c.tag',
+  result: 'cp.result',
+  workOrder: 'w.number',
+};
+
+function base(db: Knex, f: Omit<CompletionQuery, 'sort' | 'order' | 'page' | 'pageSize'>) {
+  const q = db('completions as cp')
+    .join('cores as c', 'c.id', 'cp.core_id')
+    .join('users as u', 'u.id', 'cp.technician_id')
+    .leftJoin('work_orders as w', 'w.id', 'cp.work_order_id')
+    .leftJoin('doors as d', 'd.id', 'c.door_id');
+  if (f.workOrderId) q.where('cp.work_order_id', f.workOrderId);
+  if (f.technicianId) q.where('cp.technician_id', f.technicianId);
+  if (f.doorId) q.where('c.door_id', f.doorId);
+  if (f.coreId) q.where('cp.core_id', f.coreId);
+  if (f.result) q.where('cp.result', f.result);
+  if (f.from) q.where('cp.finished_at', '>=', f.from);
+  if (f.to) q.where('cp.finished_at', '<', db.raw(`?::date + 1`, [f.to]));
+  return q;
+}
+
+const columns = [
+  'cp.id',
+  'c.id as coreId',
+  'c.tag as coreTag',
+  'd.id as doorId',
+  'd.label as doorLabel',
+  'w.id as workOrderId',
+  'w.number as workOrderNumber',
+  'w.title as workOrderTitle',
+  'u.id as technicianId',
+  'u.name as technicianName',
+  'cp.started_at as startedAt',
+  'cp.finished_at as finishedAt',
+  'cp.received_at as receivedAt',
+  'cp.result',
+  'cp.attempt_count as attemptCount',
+  'cp.failed_checks as failedChecks',
+];
+
+const isoRow = (r: Record<string, unknown>) => ({
+  ...r,
+  startedAt: new Date(r.startedAt as string).toISOString(),
+  finishedAt: new Date(r.finishedAt as string).toISOString(),
+  receivedAt: new Date(r.receivedAt as string).toISOString(),
+});
+
+export async function listCompletions(db: Knex, q: CompletionQuery) {
+  const { total } = ((await base(db, q).count({ total: '*' })) as { total: number }[])[0]!;
+  const rows = await base(db, q)
+    .select(columns)
+    .orderBy([{ column: sortColumn[q.sort], order: q.order }, { column: 'cp.id', order: q.order }])
+    .limit(q.pageSize)
+    .offset((q.page - 1) * q.pageSize);
+  return { rows: rows.map(isoRow), total: Number(total), page: q.page, pageSize: q.pageSize };
+}
+
+/** Every row for the CSV export, streamed in pages so a large log never sits in memory at once. */
+export async function* completionRowsForExport(db: Knex, q: CompletionQuery, pageSize = 2000) {
+  for (let offset = 0; ; offset += pageSize) {
+    const rows = await base(db, q).select(columns).orderBy([{ column: sortColumn[q.sort], order: q.order }, { column: 'cp.id', order: q.order }]).limit(pageSize).offset(offset);
+    for (const r of rows) yield isoRow(r);
+    if (rows.length < pageSize) return;
+  }
+}
+
+export async function getCompletion(db: Knex, id: string) {
+  const row = await base(db, {}).where('cp.id', id).first([...columns, 'cp.attempts', 'cp.notes', 'cp.device_id as deviceId']);
+  if (!row) throw notFound('That completion');
+  const install = await db('installs as i').join('doors as d', 'd.id', 'i.door_id').join('users as u', 'u.id', 'i.installed_by').where('i.core_id', row.coreId).orderBy('i.installed_at', 'desc').first('i.id', 'd.label as doorLabel', 'i.installed_at as installedAt', 'u.name as installedBy', 'i.removed_core_tag as removedCoreTag', 'i.notes');
+  return { ...isoRow(row), install: install ? { ...install, installedAt: new Date(install.installedAt).toISOString() } : null };
+}

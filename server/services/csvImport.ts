@@ -1,0 +1,142 @@
+/**
+ * CSV imports (bitting lists and doors): parse, check every row, and answer a preview with
+ * per-row errors (row number as a spreadsheet shows it, column, what is wrong). Committing
+ * is all-or-nothing: one transaction, and only when no row has an error.
+ */
+import { parse as parseCsv } from 'csv-parse/sync';
+import type { Knex } from 'knex';
+import { readBitting } from '../../shared/keying';
+import { DoorInput, KeyInput, KeyLevel } from '../../shared/schemas/records';
+import { badRequest } from '../errors';
+import { createDoors } from './doors';
+import { addKeys, loadSystem } from './keySystems';
+import type { Sealer } from './secrets';
+
+export interface RowError {
+  row: number;
+  column: string | null;
+  message: string;
+}
+
+export interface ImportResult {
+  rows: number;
+  errors: RowError[];
+  preview: Record<string, string | boolean | null>[];
+  committed: boolean;
+  created: number;
+}
+
+function readCsv(buffer: Buffer, required: string[], known: string[]): Record<string, string>[] {
+  let records: Record<string, string>[];
+  try {
+    records = parseCsv(buffer, { columns: (h: string[]) => h.map((c) => c.trim().toLowerCase().replace(/[\s-]+/g, '_')), skip_empty_lines: true, trim: true, bom: true, max_record_size: 4096 });
+  } catch (err) {
+    throw badRequest(`The file is not readable CSV: ${(err as Error).message}. Save it as CSV (comma-separated, UTF-8) with a header row.`);
+  }
+  if (!records.length) throw badRequest('The file has a header but no rows.');
+  const header = Object.keys(records[0]!);
+  const missing = required.filter((c) => !header.includes(c));
+  if (missing.length) throw badRequest(`The header lacks the column(s) ${missing.join(', ')}. Expected columns: ${known.join(', ')}.`, missing.map((c) => ({ field: c, message: 'missing column' })));
+  const unknown = header.filter((c) => !known.includes(c));
+  if (unknown.length) throw badRequest(`Unknown column(s) ${unknown.join(', ')}. Expected columns: ${known.join(', ')}.`, unknown.map((c) => ({ field: c, message: 'unknown column' })));
+  if (records.length > 5000) throw badRequest('At most 5,000 rows per import; split the file.');
+  return records;
+}
+
+const yes = (v: string | undefined) => /^(1|y|yes|true|x)$/i.test((v ?? '').trim());
+const rowOf = (i: number) => i + 2; // the header is row 1
+
+const levelWords: Record<string, KeyLevel> = { ggm: 'ggm', 'great-grand-master': 'ggm', gm: 'gm', 'grand-master': 'gm', master: 'master', m: 'master', change: 'change', cr: 'change', 'change-key': 'change' };
+
+const KEY_COLUMNS = ['symbol', 'level', 'parent', 'bitting', 'status', 'cross_keyed', 'notes'];
+
+export async function importKeys(db: Knex, sealer: Sealer, systemId: string, file: Buffer, commit: boolean): Promise<ImportResult> {
+  const system = await loadSystem(db, sealer, systemId);
+  const records = readCsv(file, ['symbol', 'level', 'bitting'], KEY_COLUMNS);
+  const errors: RowError[] = [];
+  const existing = new Set(system.keys.map((k) => k.symbol.toUpperCase()));
+  const inFile = new Map<string, number>();
+  records.forEach((r, i) => {
+    const s = (r.symbol ?? '').toUpperCase();
+    if (s && !inFile.has(s)) inFile.set(s, i);
+  });
+  const parsed: (KeyInput & { parentSymbol: string | null })[] = [];
+  records.forEach((r, i) => {
+    const row = rowOf(i);
+    const level = levelWords[(r.level ?? '').trim().toLowerCase()];
+    const result = KeyInput.safeParse({
+      symbol: r.symbol,
+      level: level ?? r.level,
+      bitting: r.bitting,
+      status: r.status ? r.status.toLowerCase() : undefined,
+      crossKeyed: yes(r.cross_keyed),
+      ...(r.notes ? { notes: r.notes } : {}),
+    });
+    if (!result.success) {
+      for (const issue of result.error.issues) {
+        const col = String(issue.path[0] ?? '');
+        errors.push({ row, column: col === 'crossKeyed' ? 'cross_keyed' : col || null, message: col === 'level' ? 'level is ggm, gm, master or change' : issue.message });
+      }
+      return;
+    }
+    const k = result.data;
+    const reading = readBitting(system.profile, k.bitting);
+    if (!reading.ok) errors.push({ row, column: 'bitting', message: reading.message });
+    else if (k.bitting === system.control) errors.push({ row, column: 'bitting', message: "this is the control key's bitting; an operating key must differ" });
+    const symbol = k.symbol.toUpperCase();
+    if (existing.has(symbol)) errors.push({ row, column: 'symbol', message: `${symbol} is in the key system already` });
+    if (inFile.get(symbol) !== i) errors.push({ row, column: 'symbol', message: `${symbol} appears more than once in the file (first on row ${rowOf(inFile.get(symbol)!)})` });
+    const parent = (r.parent ?? '').trim().toUpperCase() || null;
+    if (parent && !existing.has(parent) && !inFile.has(parent)) errors.push({ row, column: 'parent', message: `no key ${parent} in the file or the key system` });
+    if (parent && parent === symbol) errors.push({ row, column: 'parent', message: 'a key cannot be its own parent' });
+    parsed.push({ ...k, symbol, parentSymbol: parent });
+  });
+  const rank = { ggm: 0, gm: 1, master: 2, change: 3 } as const;
+  const preview = parsed.map((k) => ({ symbol: k.symbol, level: k.level, parent: k.parentSymbol, status: k.status, crossKeyed: k.crossKeyed }));
+  if (!commit || errors.length) return { rows: records.length, errors, preview, committed: false, created: 0 };
+  const ordered = [...parsed].sort((a, b) => rank[a.level] - rank[b.level]);
+  const ids = await addKeys(db, sealer, systemId, ordered);
+  return { rows: records.length, errors, preview, committed: true, created: ids.length };
+}
+
+const DOOR_COLUMNS = ['site', 'building', 'floor', 'room', 'label', 'fire_rated', 'key_system', 'key_symbol', 'notes'];
+
+export async function importDoors(db: Knex, file: Buffer, commit: boolean): Promise<ImportResult> {
+  const records = readCsv(file, ['site', 'building', 'label'], DOOR_COLUMNS);
+  const systems = new Map((await db('key_systems').select('id', 'name')).map((s: { id: string; name: string }) => [s.name.toLowerCase(), s.id]));
+  const keys = await db('keys').select('id', 'symbol', 'key_system_id');
+  const existing = new Set((await db('doors').pluck('label')).map((l: string) => l.toLowerCase()));
+  const seen = new Map<string, number>();
+  const errors: RowError[] = [];
+  const parsed: DoorInput[] = [];
+  records.forEach((r, i) => {
+    const row = rowOf(i);
+    let keySystemId: string | null = null;
+    let keyId: string | null = null;
+    if (r.key_system) {
+      keySystemId = systems.get(r.key_system.toLowerCase()) ?? null;
+      if (!keySystemId) errors.push({ row, column: 'key_system', message: `no key system named "${r.key_system}"` });
+    }
+    if (r.key_symbol) {
+      if (!keySystemId) errors.push({ row, column: 'key_symbol', message: 'a key symbol needs the key_system column too' });
+      else {
+        keyId = keys.find((k: { symbol: string; key_system_id: string }) => k.key_system_id === keySystemId && k.symbol.toUpperCase() === r.key_symbol!.toUpperCase())?.id ?? null;
+        if (!keyId) errors.push({ row, column: 'key_symbol', message: `no key ${r.key_symbol.toUpperCase()} in ${r.key_system}` });
+      }
+    }
+    const result = DoorInput.safeParse({ site: r.site, building: r.building, floor: r.floor ?? '', room: r.room ?? '', label: r.label, fireRated: yes(r.fire_rated), keySystemId, keyId, ...(r.notes ? { notes: r.notes } : {}) });
+    if (!result.success) {
+      for (const issue of result.error.issues) errors.push({ row, column: String(issue.path[0] ?? '') || null, message: issue.message });
+      return;
+    }
+    const label = result.data.label.toLowerCase();
+    if (existing.has(label)) errors.push({ row, column: 'label', message: `a door labelled "${result.data.label}" exists already` });
+    if (seen.has(label)) errors.push({ row, column: 'label', message: `"${result.data.label}" appears more than once (first on row ${rowOf(seen.get(label)!)})` });
+    else seen.set(label, i);
+    parsed.push(result.data);
+  });
+  const preview = parsed.map((d) => ({ label: d.label, site: d.site, building: d.building, floor: d.floor, room: d.room, fireRated: d.fireRated }));
+  if (!commit || errors.length) return { rows: records.length, errors, preview, committed: false, created: 0 };
+  const ids = await createDoors(db, parsed);
+  return { rows: records.length, errors, preview, committed: true, created: ids.length };
+}

@@ -1,0 +1,115 @@
+/** Doors (openings): where cores go. A door's history comes from the installs table. */
+import type { Knex } from 'knex';
+import type { DoorInput } from '../../shared/schemas/records';
+import { badRequest, conflict, notFound } from '../errors';
+
+export interface DoorFilter {
+  q?: string | undefined;
+  building?: string | undefined;
+  fireRated?: boolean | undefined;
+  keySystemId?: string | undefined;
+}
+
+export function doorQuery(db: Knex) {
+  return db('doors as d')
+    .leftJoin('keys as k', 'k.id', 'd.key_id')
+    .select(
+      'd.id',
+      'd.site',
+      'd.building',
+      'd.floor',
+      'd.room',
+      'd.label',
+      'd.fire_rated as fireRated',
+      'd.key_system_id as keySystemId',
+      'd.key_id as keyId',
+      'k.symbol as keySymbol',
+      'd.notes',
+      db.raw(`(select c.tag from cores c where c.door_id = d.id and c.state = 'installed' order by c.updated_at desc limit 1) as "currentCoreTag"`),
+    );
+}
+
+export async function listDoors(db: Knex, f: DoorFilter) {
+  const q = doorQuery(db).orderBy([{ column: 'd.building' }, { column: 'd.label' }]);
+  if (f.q) {
+    const like = `%${f.q.replace(/[%_\\]/g, (c) => `\\${c}`)}%`;
+    q.where((w) => w.whereILike('d.label', like).orWhereILike('d.room', like).orWhereILike('d.building', like));
+  }
+  if (f.building) q.where('d.building', f.building);
+  if (f.fireRated !== undefined) q.where('d.fire_rated', f.fireRated);
+  if (f.keySystemId) q.where('d.key_system_id', f.keySystemId);
+  return q;
+}
+
+export async function getDoor(db: Knex, id: string) {
+  const door = await doorQuery(db).where('d.id', id).first();
+  if (!door) throw notFound('That door');
+  return door;
+}
+
+async function checkKey(trx: Knex, input: Partial<DoorInput>): Promise<void> {
+  if (!input.keyId) return;
+  const key = await trx('keys').where({ id: input.keyId }).first('key_system_id', 'level');
+  if (!key) throw badRequest('The key for this door does not exist.', [{ field: 'keyId', message: 'unknown key' }]);
+  if (input.keySystemId && key.key_system_id !== input.keySystemId) throw badRequest('The key is not in the chosen key system.', [{ field: 'keyId', message: 'not in this key system' }]);
+}
+
+function row(input: Partial<DoorInput>) {
+  const out: Record<string, unknown> = {};
+  if (input.site !== undefined) out.site = input.site;
+  if (input.building !== undefined) out.building = input.building;
+  if (input.floor !== undefined) out.floor = input.floor;
+  if (input.room !== undefined) out.room = input.room;
+  if (input.label !== undefined) out.label = input.label;
+  if (input.fireRated !== undefined) out.fire_rated = input.fireRated;
+  if (input.keySystemId !== undefined) out.key_system_id = input.keySystemId;
+  if (input.keyId !== undefined) out.key_id = input.keyId;
+  if (input.notes !== undefined) out.notes = input.notes;
+  return out;
+}
+
+export async function createDoors(db: Knex, inputs: DoorInput[]): Promise<string[]> {
+  return db.transaction(async (trx) => {
+    const labels = inputs.map((d) => d.label.toLowerCase());
+    const dupInBatch = labels.find((l, i) => labels.indexOf(l) !== i);
+    if (dupInBatch) throw conflict(`The label "${dupInBatch}" appears twice.`);
+    const taken = await trx('doors').whereRaw('lower(label) = any(?)', [labels]).pluck('label');
+    if (taken.length) throw conflict(`A door labelled "${taken[0]}" exists already.`, [{ field: 'label', message: 'already used' }]);
+    for (const d of inputs) await checkKey(trx, d);
+    const rows = await trx('doors').insert(inputs.map(row)).returning('id');
+    return rows.map((r: { id: string }) => r.id);
+  });
+}
+
+export async function updateDoor(db: Knex, id: string, input: Partial<DoorInput>): Promise<void> {
+  await db.transaction(async (trx) => {
+    if (!(await trx('doors').where({ id }).first('id'))) throw notFound('That door');
+    if (input.label && (await trx('doors').whereRaw('lower(label) = ?', [input.label.toLowerCase()]).whereNot({ id }).first('id'))) {
+      throw conflict(`A door labelled "${input.label}" exists already.`, [{ field: 'label', message: 'already used' }]);
+    }
+    await checkKey(trx, input);
+    await trx('doors').where({ id }).update({ ...row(input), updated_at: trx.fn.now() });
+  });
+}
+
+/** Every core the door has had: from installs, newest first, with who built and installed it. */
+export async function doorHistory(db: Knex, id: string) {
+  await getDoor(db, id);
+  return db('installs as i')
+    .join('cores as c', 'c.id', 'i.core_id')
+    .join('users as u', 'u.id', 'i.installed_by')
+    .where('i.door_id', id)
+    .orderBy('i.installed_at', 'desc')
+    .select(
+      'i.id',
+      'c.id as coreId',
+      'c.tag as coreTag',
+      'c.state as coreState',
+      'i.installed_at as installedAt',
+      'u.name as installedBy',
+      'i.removed_core_tag as removedCoreTag',
+      'i.notes',
+      db.raw(`(select u2.name from completions cp join users u2 on u2.id = cp.technician_id where cp.core_id = c.id and cp.result = 'passed' order by cp.finished_at desc limit 1) as "builtBy"`),
+      db.raw(`(select cp.finished_at from completions cp where cp.core_id = c.id and cp.result = 'passed' order by cp.finished_at desc limit 1) as "builtAt"`),
+    );
+}

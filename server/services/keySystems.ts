@@ -1,0 +1,203 @@
+/**
+ * Key systems and their keys. Bittings are sealed at rest (services/secrets.ts) and come
+ * out only through `loadSystem` (for the engine) or an explicit, audited reveal.
+ */
+import { randomUUID } from 'node:crypto';
+import type { Knex } from 'knex';
+import { readBitting, type Profile } from '../../shared/keying';
+import type { KeyInput, KeyLevel, KeySystemInput, KeySystemUpdate, KeyStatus, KeyUpdate } from '../../shared/schemas/records';
+import { badRequest, conflict, notFound } from '../errors';
+import type { Sealer } from './secrets';
+import { getProfile } from './profiles';
+
+export const controlContext = (systemId: string) => `key-system-control:${systemId}`;
+export const keyContext = (keyId: string) => `key:${keyId}`;
+
+export interface SystemKey {
+  id: string;
+  symbol: string;
+  level: KeyLevel;
+  parentId: string | null;
+  status: KeyStatus;
+  crossKeyed: boolean;
+  notes: string | null;
+  bitting: string;
+}
+
+export interface LoadedSystem {
+  id: string;
+  name: string;
+  profile: Profile;
+  control: string;
+  keys: SystemKey[];
+}
+
+/** Checks a bitting against the profile; a 400 naming the field when it does not fit. */
+export function checkBitting(profile: Profile, bitting: string, field: string): string {
+  const reading = readBitting(profile, bitting);
+  if (!reading.ok) throw badRequest(`${field}: ${reading.message}`, [{ field, message: reading.message }]);
+  return bitting.trim();
+}
+
+export async function loadSystem(db: Knex, sealer: Sealer, systemId: string): Promise<LoadedSystem> {
+  const row = await db('key_systems').where({ id: systemId }).first();
+  if (!row) throw notFound('That key system');
+  const profile = await getProfile(db, row.profile_id);
+  const keys = await db('keys').where({ key_system_id: systemId }).orderBy([{ column: 'level' }, { column: 'symbol' }]);
+  return {
+    id: row.id,
+    name: row.name,
+    profile,
+    control: sealer.open(row.control_enc, controlContext(row.id)),
+    keys: keys.map((k) => ({
+      id: k.id,
+      symbol: k.symbol,
+      level: k.level,
+      parentId: k.parent_id,
+      status: k.status,
+      crossKeyed: k.cross_keyed,
+      notes: k.notes,
+      bitting: sealer.open(k.bitting_enc, keyContext(k.id)),
+    })),
+  };
+}
+
+export async function listSystems(db: Knex) {
+  const rows = await db('key_systems as s')
+    .select('s.id', 's.name', 's.profile_id as profileId', 's.notes', 's.created_at as createdAt', 's.updated_at as updatedAt')
+    .select(db.raw('(select count(*) from keys k where k.key_system_id = s.id)::int as "keyCount"'))
+    .select(db.raw('(select count(*) from cores c where c.key_system_id = s.id)::int as "coreCount"'))
+    .orderBy('s.name');
+  return rows.map((r) => ({ ...r, createdAt: new Date(r.createdAt).toISOString(), updatedAt: new Date(r.updatedAt).toISOString() }));
+}
+
+export async function getSystem(db: Knex, id: string) {
+  const row = (await listSystems(db)).find((s) => s.id === id);
+  if (!row) throw notFound('That key system');
+  return row;
+}
+
+export async function createSystem(db: Knex, sealer: Sealer, input: KeySystemInput): Promise<string> {
+  const profile = await getProfile(db, input.profileId);
+  const control = checkBitting(profile, input.control, 'control');
+  if (await db('key_systems').where({ name: input.name }).first('id')) throw conflict(`A key system named "${input.name}" exists already.`, [{ field: 'name', message: 'already used' }]);
+  const id = randomUUID();
+  await db('key_systems').insert({ id, name: input.name, profile_id: profile.id, control_enc: sealer.seal(control, controlContext(id)), notes: input.notes ?? null });
+  return id;
+}
+
+export async function updateSystem(db: Knex, sealer: Sealer, id: string, input: KeySystemUpdate): Promise<void> {
+  const current = await db('key_systems').where({ id }).first();
+  if (!current) throw notFound('That key system');
+  if (input.profileId && input.profileId !== current.profile_id && (await db('keys').where({ key_system_id: id }).first('id'))) {
+    throw conflict('The profile of a key system with keys cannot change; its bittings were made for this one.');
+  }
+  const profile = await getProfile(db, input.profileId ?? current.profile_id);
+  const patch: Record<string, unknown> = { updated_at: db.fn.now() };
+  if (input.name !== undefined) patch.name = input.name;
+  if (input.notes !== undefined) patch.notes = input.notes;
+  if (input.profileId !== undefined) patch.profile_id = profile.id;
+  if (input.control !== undefined) patch.control_enc = sealer.seal(checkBitting(profile, input.control, 'control'), controlContext(id));
+  await db('key_systems').where({ id }).update(patch);
+}
+
+/** Keys without their bittings, unless `reveal` (the caller audits it). */
+export async function listKeys(db: Knex, sealer: Sealer, systemId: string, reveal: boolean) {
+  if (!(await db('key_systems').where({ id: systemId }).first('id'))) throw notFound('That key system');
+  const rows = await db('keys').where({ key_system_id: systemId }).orderBy('symbol');
+  return rows.map((k) => ({
+    id: k.id,
+    keySystemId: k.key_system_id,
+    symbol: k.symbol,
+    level: k.level,
+    parentId: k.parent_id,
+    status: k.status,
+    crossKeyed: k.cross_keyed,
+    notes: k.notes,
+    ...(reveal ? { bitting: sealer.open(k.bitting_enc, keyContext(k.id)) } : {}),
+  }));
+}
+
+async function checkParent(trx: Knex, systemId: string, parentId: string | null | undefined, selfId?: string): Promise<void> {
+  if (!parentId) return;
+  if (parentId === selfId) throw badRequest('A key cannot be its own parent.', [{ field: 'parentId', message: 'choose another key' }]);
+  const parent = await trx('keys').where({ id: parentId, key_system_id: systemId }).first('id', 'level');
+  if (!parent) throw badRequest('The parent key is not in this key system.', [{ field: 'parentId', message: 'not in this key system' }]);
+  if (parent.level === 'change') throw badRequest('A change key cannot be a parent; choose a master.', [{ field: 'parentId', message: 'choose a master key' }]);
+}
+
+/** Adds keys in one transaction: all or none. Rows refer to parents by id or, for rows in the same batch, by symbol. */
+export async function addKeys(db: Knex, sealer: Sealer, systemId: string, inputs: (KeyInput & { parentSymbol?: string | null })[]): Promise<string[]> {
+  const system = await loadSystem(db, sealer, systemId);
+  return db.transaction(async (trx) => {
+    const bySymbol = new Map(system.keys.map((k) => [k.symbol.toUpperCase(), k.id]));
+    const ids: string[] = [];
+    for (const [i, input] of inputs.entries()) {
+      const where = inputs.length > 1 ? `row ${i + 1}: ` : '';
+      const bitting = checkBitting(system.profile, input.bitting, inputs.length > 1 ? `${i}.bitting` : 'bitting');
+      if (bitting === system.control) throw badRequest(`${where}this bitting is the control key's; a key that releases cores cannot be an operating key.`, [{ field: 'bitting', message: 'equals the control key' }]);
+      const symbol = input.symbol.toUpperCase();
+      if (bySymbol.has(symbol)) throw conflict(`${where}the symbol ${symbol} is used already in this key system.`, [{ field: 'symbol', message: 'already used' }]);
+      const parentId = input.parentId ?? (input.parentSymbol ? bySymbol.get(input.parentSymbol.toUpperCase()) : null) ?? null;
+      if (input.parentSymbol && !parentId) throw badRequest(`${where}no key ${input.parentSymbol} to hang ${symbol} under.`, [{ field: 'parentSymbol', message: 'unknown symbol' }]);
+      await checkParent(trx, systemId, parentId);
+      const id = randomUUID();
+      await trx('keys').insert({
+        id,
+        key_system_id: systemId,
+        symbol,
+        level: input.level,
+        parent_id: parentId,
+        bitting_enc: sealer.seal(bitting, keyContext(id)),
+        status: input.status ?? 'active',
+        cross_keyed: input.crossKeyed ?? false,
+        notes: input.notes ?? null,
+      });
+      bySymbol.set(symbol, id);
+      ids.push(id);
+    }
+    await trx('key_systems').where({ id: systemId }).update({ updated_at: trx.fn.now() });
+    return ids;
+  });
+}
+
+export async function updateKey(db: Knex, sealer: Sealer, systemId: string, keyId: string, input: KeyUpdate): Promise<void> {
+  const system = await loadSystem(db, sealer, systemId);
+  const key = system.keys.find((k) => k.id === keyId);
+  if (!key) throw notFound('That key');
+  await db.transaction(async (trx) => {
+    const patch: Record<string, unknown> = { updated_at: trx.fn.now() };
+    if (input.symbol !== undefined) {
+      const symbol = input.symbol.toUpperCase();
+      if (system.keys.some((k) => k.id !== keyId && k.symbol.toUpperCase() === symbol)) throw conflict(`The symbol ${symbol} is used already.`, [{ field: 'symbol', message: 'already used' }]);
+      patch.symbol = symbol;
+    }
+    if (input.status !== undefined) patch.status = input.status;
+    if (input.notes !== undefined) patch.notes = input.notes;
+    if (input.parentId !== undefined) {
+      await checkParent(trx, systemId, input.parentId, keyId);
+      patch.parent_id = input.parentId;
+    }
+    if (input.bitting !== undefined) {
+      const bitting = checkBitting(system.profile, input.bitting, 'bitting');
+      if (bitting === system.control) throw badRequest("This bitting is the control key's.", [{ field: 'bitting', message: 'equals the control key' }]);
+      if (await trx('core_keys as ck').join('cores as c', 'c.id', 'ck.core_id').where('ck.key_id', keyId).whereNot('c.state', 'retired').first('c.id')) {
+        throw conflict('Cores are pinned for this key: retire them or plan a rekey before changing its bitting.');
+      }
+      patch.bitting_enc = sealer.seal(bitting, keyContext(keyId));
+    }
+    await trx('keys').where({ id: keyId }).update(patch);
+  });
+}
+
+/** The key and every master above it: what a core for this change key must accept. */
+export function chainOf(keys: SystemKey[], keyId: string): SystemKey[] {
+  const byId = new Map(keys.map((k) => [k.id, k]));
+  const chain: SystemKey[] = [];
+  let at = byId.get(keyId);
+  while (at && !chain.includes(at)) {
+    chain.push(at);
+    at = at.parentId ? byId.get(at.parentId) : undefined;
+  }
+  return chain;
+}

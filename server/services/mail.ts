@@ -1,0 +1,64 @@
+/**
+ * Outgoing e-mail through nodemailer. In development and tests the transport points at the
+ * fake SMTP server (server/dev/fakeSmtp.ts); with no SMTP configured, mail is logged as
+ * "not sent" (never its body). Sending never fails the request that caused it.
+ * No mail ever carries a bitting.
+ */
+import nodemailer from 'nodemailer';
+import type { Config } from '../config';
+
+export interface Mail {
+  to: string;
+  subject: string;
+  text: string;
+}
+
+export interface Mailer {
+  send(mail: Mail): Promise<void>;
+}
+
+export function createMailer(config: Config, log: (msg: string) => void = console.log): Mailer {
+  const transport = config.smtp
+    ? nodemailer.createTransport({ host: config.smtp.host, port: config.smtp.port, secure: false, ignoreTLS: true })
+    : null;
+  return {
+    async send(mail) {
+      if (!transport) {
+        log(`[mail] no SMTP configured; not sent: "${mail.subject}" to ${mail.to}`);
+        return;
+      }
+      try {
+        await transport.sendMail({ from: config.mailFrom, ...mail });
+      } catch (err) {
+        log(`[mail] sending "${mail.subject}" to ${mail.to} failed: ${(err as Error).message}`);
+      }
+    },
+  };
+}
+
+export const mails = {
+  invitation(name: string, link: string, inviter: string): Omit<Mail, 'to'> {
+    return {
+      subject: 'Your Corewright account',
+      text: `Hello ${name},\n\n${inviter} has made you a Corewright account. Choose your password here (the link works once, for 72 hours):\n\n${link}\n\nIf you did not expect this, ignore this message.\n`,
+    };
+  },
+  workOrderAssigned(o: { number: number; title: string; cores: number; due: string | null; link: string }): Omit<Mail, 'to'> {
+    return {
+      subject: `Work order #${o.number} assigned to you: ${o.title}`,
+      text: `Work order #${o.number}, "${o.title}", is yours: ${o.cores} core(s)${o.due ? `, due ${o.due}` : ''}.\n\nOpen Corewright and keep it on your tablet before you go offline:\n${o.link}\n`,
+    };
+  },
+  workOrderFinished(o: { number: number; title: string; cores: number; link: string }): Omit<Mail, 'to'> {
+    return {
+      subject: `Work order #${o.number} finished: ${o.title}`,
+      text: `Every core of work order #${o.number}, "${o.title}" (${o.cores}), has passed its key check.\n\nThe completion log has the details:\n${o.link}\n`,
+    };
+  },
+  keyCheckFailed(o: { number: number | null; title: string | null; tag: string; door: string | null; technician: string; notes: string[]; link: string }): Omit<Mail, 'to'> {
+    return {
+      subject: `Failed key check: core ${o.tag}${o.door ? ` for ${o.door}` : ''}`,
+      text: `${o.technician} recorded a failed key check on core ${o.tag}${o.door ? ` (door ${o.door})` : ''}${o.number ? `, work order #${o.number} "${o.title}"` : ''}.\n${o.notes.length ? `\nWhat happened:\n${o.notes.map((n) => `- ${n}`).join('\n')}\n` : ''}\nThe core waits for a rebuild. Completion log:\n${o.link}\n`,
+    };
+  },
+};

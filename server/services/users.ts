@@ -1,0 +1,53 @@
+/** Accounts: invitations by e-mail with a one-time set-password link, role changes, deactivation. */
+import { randomBytes } from 'node:crypto';
+import type { Knex } from 'knex';
+import type { InviteRequest, UserUpdate } from '../../shared/schemas/auth';
+import { badRequest, conflict, HttpError, notFound } from '../errors';
+import { hashPassword } from './passwords';
+import { revokeUserSessions } from './sessions';
+import { sha256 } from './tokens';
+
+const INVITE_HOURS = 72;
+
+export async function listUsers(db: Knex) {
+  return db('users as u')
+    .orderBy('u.email')
+    .select('u.id', 'u.email', 'u.name', 'u.role', 'u.active', 'u.created_at as createdAt', db.raw('(u.password_hash is not null) as "hasPassword"'));
+}
+
+export async function inviteUser(db: Knex, input: InviteRequest, by: string): Promise<{ userId: string; token: string }> {
+  return db.transaction(async (trx) => {
+    if (await trx('users').where({ email: input.email }).first('id')) throw conflict(`${input.email} has an account already.`, [{ field: 'email', message: 'already has an account' }]);
+    const [user] = await trx('users').insert({ email: input.email, name: input.name, role: input.role, password_hash: null }).returning('id');
+    const token = randomBytes(32).toString('base64url');
+    await trx('invitations').insert({ user_id: user.id, token_hash: sha256(token), expires_at: new Date(Date.now() + INVITE_HOURS * 3600_000), created_by: by });
+    return { userId: user.id as string, token };
+  });
+}
+
+export async function updateUser(db: Knex, id: string, input: UserUpdate, by: string): Promise<void> {
+  if (id === by && (input.active === false || (input.role && input.role !== 'admin'))) throw badRequest('You cannot deactivate yourself or remove your own admin role; ask another administrator.');
+  await db.transaction(async (trx) => {
+    const user = await trx('users').where({ id }).forUpdate().first('id', 'role', 'active');
+    if (!user) throw notFound('That user');
+    const patch: Record<string, unknown> = { updated_at: trx.fn.now() };
+    if (input.role !== undefined) patch.role = input.role;
+    if (input.active !== undefined) patch.active = input.active;
+    if (input.name !== undefined) patch.name = input.name;
+    await trx('users').where({ id }).update(patch);
+    if (input.active === false) await revokeUserSessions(trx, id, 'deactivated');
+  });
+}
+
+export async function acceptInvitation(db: Knex, token: string, password: string): Promise<{ userId: string; email: string }> {
+  const hash = await hashPassword(password);
+  return db.transaction(async (trx) => {
+    const inv = await trx('invitations as i').join('users as u', 'u.id', 'i.user_id').where('i.token_hash', sha256(token)).forUpdate().first('i.id', 'i.expires_at', 'i.used_at', 'u.id as userId', 'u.email', 'u.active');
+    if (!inv || inv.used_at || new Date(inv.expires_at) < new Date() || !inv.active) {
+      throw new HttpError('unprocessable', 'This link has expired or was used already; ask your administrator for a new invitation.');
+    }
+    await trx('invitations').where({ id: inv.id }).update({ used_at: trx.fn.now() });
+    await trx('users').where({ id: inv.userId }).update({ password_hash: hash, updated_at: trx.fn.now() });
+    return { userId: inv.userId, email: inv.email };
+  });
+}

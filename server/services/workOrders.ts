@@ -1,0 +1,203 @@
+/**
+ * Work orders: a batch of cores planned together. Creating one computes every core's
+ * chart with the shared engine and refuses the whole order if any chart has an error.
+ * The packet is what the technician's tablet keeps offline.
+ */
+import type { Knex } from 'knex';
+import { hasErrors, keyOperates, pinCore, trayFor, type CorePinning } from '../../shared/keying';
+import type { KeyCheckItem, Packet } from '../../shared/schemas/packet';
+import type { WorkOrderInput, WorkOrderUpdate } from '../../shared/schemas/records';
+import { badRequest, notFound } from '../errors';
+import { chainOf, loadSystem, type LoadedSystem, type SystemKey } from './keySystems';
+import type { Sealer } from './secrets';
+
+/** Hours a packet stays on a tablet: one shift. */
+export const PACKET_HOURS = 12;
+
+export function pinningFor(system: LoadedSystem, operating: SystemKey[]): CorePinning {
+  const chain = [...operating].sort((a, b) => levelRank(b.level) - levelRank(a.level));
+  const top = chain.find((k) => !k.crossKeyed && k.level !== 'change') ?? chain[chain.length - 1];
+  return pinCore(system.profile, { operating: chain.map((k) => k.bitting), control: system.control, ...(top ? { topMaster: top.bitting } : {}) });
+}
+
+function levelRank(level: string): number {
+  return { change: 0, master: 1, gm: 2, ggm: 3 }[level] ?? 0;
+}
+
+export function workOrderQuery(db: Knex) {
+  return db('work_orders as w')
+    .join('key_systems as s', 's.id', 'w.key_system_id')
+    .leftJoin('users as u', 'u.id', 'w.assignee_id')
+    .select(
+      'w.id',
+      'w.number',
+      'w.title',
+      'w.purpose',
+      'w.key_system_id as keySystemId',
+      's.name as keySystemName',
+      'w.assignee_id as assigneeId',
+      'u.name as assigneeName',
+      db.raw(`to_char(w.due_date, 'YYYY-MM-DD') as "dueDate"`),
+      'w.status',
+      'w.notes',
+      'w.created_at as createdAt',
+      db.raw(`(select count(*) from work_order_cores x where x.work_order_id = w.id)::int as "coreCount"`),
+      db.raw(`(select count(*) from work_order_cores x join cores c on c.id = x.core_id where x.work_order_id = w.id and c.state in ('capped','installed'))::int as "doneCount"`),
+      db.raw(`(select count(distinct cp.core_id) from completions cp join cores c on c.id = cp.core_id where cp.work_order_id = w.id and cp.result = 'failed' and c.state not in ('capped','installed','retired'))::int as "failedCount"`),
+      db.raw(`exists(select 1 from work_order_cores x join cores c on c.id = x.core_id join doors d on d.id = c.door_id where x.work_order_id = w.id and d.fire_rated) as "hasFireRated"`),
+    );
+}
+
+export const iso = <T extends { createdAt?: unknown }>(r: T): T => ({ ...r, createdAt: r.createdAt ? new Date(r.createdAt as string).toISOString() : r.createdAt });
+
+export async function getWorkOrder(db: Knex, id: string) {
+  const row = await workOrderQuery(db).where('w.id', id).first();
+  if (!row) throw notFound('That work order');
+  return iso(row);
+}
+
+export async function createWorkOrder(db: Knex, sealer: Sealer, input: WorkOrderInput, createdBy: string) {
+  const system = await loadSystem(db, sealer, input.keySystemId);
+  return db.transaction(async (trx) => {
+    if (input.assigneeId) {
+      const who = await trx('users').where({ id: input.assigneeId, active: true }).first('role');
+      if (!who) throw badRequest('The assignee is not an active user.', [{ field: 'assigneeId', message: 'choose an active user' }]);
+    }
+    const doorIds = input.doors.map((d) => d.doorId);
+    if (new Set(doorIds).size !== doorIds.length) throw badRequest('A door appears twice in the work order.', [{ field: 'doors', message: 'each door once' }]);
+    const doors = await trx('doors').whereIn('id', doorIds).select('id', 'label');
+    const labelOf = new Map(doors.map((d: { id: string; label: string }) => [d.id, d.label]));
+    const problems: { field: string; message: string }[] = [];
+    const planned: { doorId: string; chain: SystemKey[] }[] = [];
+    for (const [i, d] of input.doors.entries()) {
+      const label = labelOf.get(d.doorId);
+      if (!label) {
+        problems.push({ field: `doors.${i}.doorId`, message: 'no such door' });
+        continue;
+      }
+      const key = system.keys.find((k) => k.id === d.keyId);
+      if (!key) {
+        problems.push({ field: `doors.${i}.keyId`, message: `door ${label}: the key is not in ${system.name}` });
+        continue;
+      }
+      if (key.status !== 'active') {
+        problems.push({ field: `doors.${i}.keyId`, message: `door ${label}: key ${key.symbol} is ${key.status}; choose an active key` });
+        continue;
+      }
+      const chain = chainOf(system.keys, key.id);
+      const pinning = pinningFor(system, chain);
+      if (hasErrors(pinning)) {
+        for (const issue of pinning.issues.filter((x) => x.severity === 'error')) problems.push({ field: `doors.${i}.keyId`, message: `door ${label} (${key.symbol}): ${issue.message}` });
+        continue;
+      }
+      planned.push({ doorId: d.doorId, chain });
+    }
+    if (problems.length) throw badRequest(`The work order cannot be planned: ${problems[0]!.message}`, problems);
+    const [wo] = await trx('work_orders')
+      .insert({
+        title: input.title,
+        purpose: input.purpose,
+        key_system_id: system.id,
+        assignee_id: input.assigneeId ?? null,
+        due_date: input.dueDate ?? null,
+        notes: input.notes ?? null,
+        status: input.assigneeId ? 'assigned' : 'draft',
+        created_by: createdBy,
+      })
+      .returning(['id', 'number']);
+    for (const [position, p] of planned.entries()) {
+      const { nextval } = ((await trx.raw(`select nextval('core_tag_seq')::int as nextval`)).rows as { nextval: number }[])[0]!;
+      const [core] = await trx('cores').insert({ tag: `CR-${nextval}`, key_system_id: system.id, door_id: p.doorId, state: 'planned' }).returning('id');
+      await trx('core_keys').insert(p.chain.map((k) => ({ core_id: core.id, key_id: k.id })));
+      await trx('work_order_cores').insert({ work_order_id: wo.id, core_id: core.id, position });
+    }
+    return { id: wo.id as string, number: wo.number as number, cores: planned.length };
+  });
+}
+
+export async function updateWorkOrder(db: Knex, id: string, input: WorkOrderUpdate): Promise<{ assignedTo: string | null }> {
+  return db.transaction(async (trx) => {
+    const current = await trx('work_orders').where({ id }).forUpdate().first();
+    if (!current) throw notFound('That work order');
+    if (current.status === 'done' || current.status === 'cancelled') throw badRequest(`This work order is ${current.status}; it cannot change.`);
+    const patch: Record<string, unknown> = { updated_at: trx.fn.now() };
+    let assignedTo: string | null = null;
+    if (input.assigneeId !== undefined && input.assigneeId !== current.assignee_id) {
+      if (input.assigneeId && !(await trx('users').where({ id: input.assigneeId, active: true }).first('id'))) {
+        throw badRequest('The assignee is not an active user.', [{ field: 'assigneeId', message: 'choose an active user' }]);
+      }
+      patch.assignee_id = input.assigneeId;
+      assignedTo = input.assigneeId;
+      if (current.status === 'draft' && input.assigneeId) patch.status = 'assigned';
+    }
+    for (const [k, col] of [['title', 'title'], ['purpose', 'purpose'], ['dueDate', 'due_date'], ['notes', 'notes'], ['status', 'status']] as const) {
+      if (input[k] !== undefined) patch[col] = input[k];
+    }
+    await trx('work_orders').where({ id }).update(patch);
+    return { assignedTo };
+  });
+}
+
+interface CoreRow {
+  id: string;
+  tag: string;
+  state: string;
+  door_id: string | null;
+}
+
+function keyCheckPlan(system: LoadedSystem, chain: SystemKey[], pinning: CorePinning): KeyCheckItem[] {
+  const ordered = [...chain].sort((a, b) => levelRank(a.level) - levelRank(b.level));
+  const plan: KeyCheckItem[] = ordered.map((k) => ({
+    role: k.crossKeyed ? 'cross' : k.level === 'change' ? 'change' : 'master',
+    symbol: k.symbol,
+    level: k.level,
+    expect: 'turns',
+  }));
+  plan.push({ role: 'control', symbol: 'CONTROL', level: null, expect: 'releases' });
+  // One key of the system that must not turn this core: a sibling change key first.
+  const inChain = new Set(chain.map((k) => k.id));
+  const change = ordered[0];
+  const candidates = system.keys
+    .filter((k) => !inChain.has(k.id) && k.status === 'active')
+    .sort((a, b) => Number(b.parentId === change?.parentId) - Number(a.parentId === change?.parentId) || levelRank(a.level) - levelRank(b.level) || a.symbol.localeCompare(b.symbol));
+  const outsider = candidates.find((k) => !keyOperates(pinning, system.profile, k.bitting).plug);
+  if (outsider) plan.push({ role: 'must-not-turn', symbol: outsider.symbol, level: outsider.level, expect: 'none' });
+  return plan;
+}
+
+export async function buildPacket(db: Knex, sealer: Sealer, workOrderId: string): Promise<Packet> {
+  const wo = await getWorkOrder(db, workOrderId);
+  const system = await loadSystem(db, sealer, wo.keySystemId);
+  const cores: CoreRow[] = await db('work_order_cores as x').join('cores as c', 'c.id', 'x.core_id').where('x.work_order_id', workOrderId).orderBy('x.position').select('c.id', 'c.tag', 'c.state', 'c.door_id');
+  const links = await db('core_keys').whereIn('core_id', cores.map((c) => c.id)).select('core_id', 'key_id');
+  const doorIds = cores.map((c) => c.door_id).filter((d): d is string => !!d);
+  const doors = await db('doors as d')
+    .whereIn('d.id', doorIds)
+    .select('d.id', 'd.label', 'd.site', 'd.building', 'd.floor', 'd.room', 'd.fire_rated as fireRated', db.raw(`(select c.tag from cores c where c.door_id = d.id and c.state = 'installed' limit 1) as "currentCoreTag"`));
+  const doorById = new Map(doors.map((d: { id: string }) => [d.id, d]));
+  const keyById = new Map(system.keys.map((k) => [k.id, k]));
+  const packetCores = cores.map((c) => {
+    const chain = links.filter((l: { core_id: string }) => l.core_id === c.id).map((l: { key_id: string }) => keyById.get(l.key_id)!);
+    const pinning = pinningFor(system, chain);
+    return { id: c.id, tag: c.tag, state: c.state, door: c.door_id ? (doorById.get(c.door_id) ?? null) : null, pinning, keyCheck: keyCheckPlan(system, chain, pinning) };
+  });
+  const fetchedAt = new Date();
+  return {
+    v: 1,
+    workOrder: { id: wo.id, number: wo.number, title: wo.title, purpose: wo.purpose, status: wo.status, dueDate: wo.dueDate, notes: wo.notes, hasFireRated: wo.hasFireRated },
+    keySystem: { id: system.id, name: system.name },
+    profile: system.profile,
+    cores: packetCores as Packet['cores'],
+    tray: trayFor(system.profile, packetCores.map((c) => c.pinning)),
+    fetchedAt: fetchedAt.toISOString(),
+    expiresAt: new Date(fetchedAt.getTime() + PACKET_HOURS * 3600_000).toISOString(),
+  };
+}
+
+/** May this user work on this core? Supervisors and admins may; a technician only on cores of work orders assigned to them. */
+export async function coreInUsersWork(db: Knex, user: { id: string; role: string }, coreId: string, workOrderId?: string): Promise<boolean> {
+  const q = db('work_order_cores as x').join('work_orders as w', 'w.id', 'x.work_order_id').where('x.core_id', coreId).whereNot('w.status', 'cancelled');
+  if (workOrderId) q.where('w.id', workOrderId);
+  if (user.role === 'technician') q.where('w.assignee_id', user.id);
+  return !!(await q.first('w.id'));
+}

@@ -1,0 +1,47 @@
+import { z } from 'zod';
+import { Id, IsoDate } from './common';
+
+export const completionSorts = ['finishedAt', 'startedAt', 'technician', 'door', 'core', 'result', 'workOrder'] as const;
+
+export const CompletionQuery = z.strictObject({
+  workOrderId: Id.optional(),
+  technicianId: Id.optional(),
+  doorId: Id.optional(),
+  coreId: Id.optional(),
+  result: z.enum(['passed', 'failed']).optional(),
+  from: IsoDate.optional(),
+  to: IsoDate.optional(),
+  sort: z.enum(completionSorts, { error: `sort is one of ${completionSorts.join(', ')}` }).default('finishedAt'),
+  order: z.enum(['asc', 'desc']).default('desc'),
+  page: z.coerce.number().int().min(1, { error: 'page starts at 1' }).default(1),
+  pageSize: z.coerce.number().int().min(1).max(200, { error: 'pageSize is at most 200' }).default(25),
+});
+export type CompletionQuery = z.infer<typeof CompletionQuery>;
+
+export const CompletionRow = z.object({
+  id: Id,
+  coreId: Id,
+  coreTag: z.string(),
+  doorId: Id.nullable(),
+  doorLabel: z.string().nullable(),
+  workOrderId: Id.nullable(),
+  workOrderNumber: z.number().nullable(),
+  workOrderTitle: z.string().nullable(),
+  technicianId: Id,
+  technicianName: z.string(),
+  startedAt: z.string(),
+  finishedAt: z.string(),
+  receivedAt: z.string(),
+  result: z.enum(['passed', 'failed']),
+  attemptCount: z.number(),
+  failedChecks: z.number(),
+});
+export type CompletionRow = z.infer<typeof CompletionRow>;
+
+export const CompletionPage = z.object({
+  rows: z.array(CompletionRow),
+  total: z.number(),
+  page: z.number(),
+  pageSize: z.number(),
+});
+export type CompletionPage = z.infer<typeof CompletionPage>;
