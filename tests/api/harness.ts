@@ -40,6 +40,8 @@ export interface Harness {
   call(method: string, path: string, opts?: CallOptions): Promise<Reply>;
   signIn(email: string, password?: string): Promise<{ accessToken: string; refreshToken: string; user: { id: string; role: string } }>;
   tokenFor(role: 'technician' | 'supervisor' | 'admin'): Promise<string>;
+  /** resetDatabase() again (with the demo campus when the harness has it), forgetting signed-in tokens. */
+  reset(): Promise<void>;
   close(): Promise<void>;
 }
 
@@ -112,7 +114,12 @@ export async function startHarness(env: Record<string, string> = {}, opts: { dem
     for (let i = 0; i < 50 && mine().length < count; i++) await new Promise((r) => setTimeout(r, 100));
     return mine();
   }
-  return { db, config, sealer, smtp, mailTo, base, call, signIn, tokenFor, close };
+  async function reset(): Promise<void> {
+    tokens.clear();
+    smtp.messages.length = 0;
+    await resetDatabase(db, opts.demo ? { demo: sealer } : {});
+  }
+  return { db, config, sealer, smtp, mailTo, base, call, signIn, tokenFor, reset, close };
 }
 
 export async function countRows(db: Db, ...tables: string[]): Promise<Record<string, number>> {
