@@ -6,22 +6,30 @@ import { notFound } from '../errors';
 const sortColumn: Record<CompletionQuery['sort'], string> = {
   finishedAt: 'cp.finished_at',
   startedAt: 'cp.started_at',
-  technician: 'u.name',
-  door: 'd.label',
-  core: 'c.tag',
+  technician: 'cp.technician_name',
+  door: 'cp.door_label',
+  core: 'cp.core_tag',
   result: 'cp.result',
   workOrder: 'w.number',
 };
 
-function base(db: Knex, f: Omit<CompletionQuery, 'sort' | 'order' | 'page' | 'pageSize'>) {
+type Filter = Omit<CompletionQuery, 'sort' | 'order' | 'page' | 'pageSize'>;
+
+function base(db: Knex, f: Filter) {
   const q = db('completions as cp')
-    .join('cores as c', 'c.id', 'cp.core_id')
-    .join('users as u', 'u.id', 'cp.technician_id')
-    .leftJoin('work_orders as w', 'w.id', 'cp.work_order_id')
-    .leftJoin('doors as d', 'd.id', 'c.door_id');
+    .leftJoin('work_orders as w', 'w.id', 'cp.work_order_id');
+  return filtered(db, q, f);
+}
+
+/** The count needs no join: every filter is on the completion's own columns. */
+function countQuery(db: Knex, f: Filter) {
+  return filtered(db, db('completions as cp'), f).count({ total: '*' });
+}
+
+function filtered(db: Knex, q: Knex.QueryBuilder, f: Filter) {
   if (f.workOrderId) q.where('cp.work_order_id', f.workOrderId);
   if (f.technicianId) q.where('cp.technician_id', f.technicianId);
-  if (f.doorId) q.where('c.door_id', f.doorId);
+  if (f.doorId) q.where('cp.door_id', f.doorId);
   if (f.coreId) q.where('cp.core_id', f.coreId);
   if (f.result) q.where('cp.result', f.result);
   if (f.from) q.where('cp.finished_at', '>=', f.from);
@@ -31,15 +39,15 @@ function base(db: Knex, f: Omit<CompletionQuery, 'sort' | 'order' | 'page' | 'pa
 
 const columns = [
   'cp.id',
-  'c.id as coreId',
-  'c.tag as coreTag',
-  'd.id as doorId',
-  'd.label as doorLabel',
+  'cp.core_id as coreId',
+  'cp.core_tag as coreTag',
+  'cp.door_id as doorId',
+  'cp.door_label as doorLabel',
   'w.id as workOrderId',
   'w.number as workOrderNumber',
   'w.title as workOrderTitle',
-  'u.id as technicianId',
-  'u.name as technicianName',
+  'cp.technician_id as technicianId',
+  'cp.technician_name as technicianName',
   'cp.started_at as startedAt',
   'cp.finished_at as finishedAt',
   'cp.received_at as receivedAt',
@@ -56,7 +64,7 @@ const isoRow = (r: Record<string, unknown>) => ({
 });
 
 export async function listCompletions(db: Knex, q: CompletionQuery) {
-  const { total } = ((await base(db, q).count({ total: '*' })) as { total: number }[])[0]!;
+  const { total } = ((await countQuery(db, q)) as { total: number }[])[0]!;
   const rows = await base(db, q)
     .select(columns)
     .orderBy([{ column: sortColumn[q.sort], order: q.order }, { column: 'cp.id', order: q.order }])

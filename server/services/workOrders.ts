@@ -193,11 +193,3 @@ export async function buildPacket(db: Knex, sealer: Sealer, workOrderId: string)
     expiresAt: new Date(fetchedAt.getTime() + PACKET_HOURS * 3600_000).toISOString(),
   };
 }
-
-/** May this user work on this core? Supervisors and admins may; a technician only on cores of work orders assigned to them. */
-export async function coreInUsersWork(db: Knex, user: { id: string; role: string }, coreId: string, workOrderId?: string): Promise<boolean> {
-  const q = db('work_order_cores as x').join('work_orders as w', 'w.id', 'x.work_order_id').where('x.core_id', coreId).whereNot('w.status', 'cancelled');
-  if (workOrderId) q.where('w.id', workOrderId);
-  if (user.role === 'technician') q.where('w.assignee_id', user.id);
-  return !!(await q.first('w.id'));
-}

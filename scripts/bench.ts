@@ -1,0 +1,76 @@
+/**
+ * `npm run bench`: the benchmarks, never timed tests. Writes bench/results.json and prints
+ * a summary. Steps: the keying engine (vitest bench), sync load and the completion log on
+ * a throw-away Postgres with a real server process, and the Bench in Chromium.
+ * `npm run bench -- engine load browser` runs the parts named.
+ */
+import { spawn, spawnSync } from 'node:child_process';
+import { chmodSync, existsSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
+import { cpus } from 'node:os';
+import path from 'node:path';
+import { completionLog, syncLoad } from '../bench/load';
+import { createDb, migrateLatest } from '../server/db';
+import { ensureDatabase, freePort, startCluster, stopCluster } from './lib/postgres';
+
+const root = path.resolve(import.meta.dirname, '..');
+const parts = process.argv.slice(2).filter((a) => ['engine', 'load', 'browser'].includes(a));
+const want = (p: string) => !parts.length || parts.includes(p);
+const outFile = path.join(root, 'bench/results.json');
+const results: Record<string, unknown> = existsSync(outFile) ? JSON.parse(readFileSync(outFile, 'utf8')) : {};
+results.machine = { cpus: cpus().length, cpu: cpus()[0]?.model, node: process.version, at: new Date().toISOString() };
+
+if (want('engine')) {
+  const r = spawnSync('npx', ['vitest', 'bench', '--run', '--project', 'bench', '--outputJson', 'bench/vitest-bench.json'], { cwd: root, stdio: 'inherit' });
+  if (r.status !== 0) throw new Error('the engine benchmark failed');
+  results.engine = JSON.parse(readFileSync(path.join(root, 'bench/keying-results.json'), 'utf8'));
+}
+
+async function withServer<T>(run: (base: string, db: ReturnType<typeof createDb>, tmp: string) => Promise<T>): Promise<T> {
+  const tmp = mkdtempSync('/tmp/corewright-bench-');
+  chmodSync(tmp, 0o755);
+  const dataDir = path.join(tmp, 'pg');
+  const cluster = startCluster({ dataDir, port: await freePort(56432) });
+  const url = await ensureDatabase(cluster, 'corewright_bench');
+  const db = createDb(url);
+  const port = await freePort(8280);
+  let server: ReturnType<typeof spawn> | undefined;
+  try {
+    await migrateLatest(db);
+    server = spawn(process.execPath, ['--import', 'tsx', 'tests/e2e/support/serve.ts'], {
+      cwd: root,
+      stdio: ['ignore', 'ignore', 'inherit'],
+      env: { ...process.env, NODE_ENV: 'test', DATABASE_URL: url, PORT: String(port), CW_SECRETS_FILE: path.join(tmp, 'secrets.json'), CW_STATIC_DIR: path.join(tmp, 'dist'), CW_DB_POOL: '20', CW_SIGN_IN_ATTEMPTS: '1000' },
+    });
+    const base = `http://127.0.0.1:${port}`;
+    for (let i = 0; i < 120; i++) {
+      if (await fetch(`${base}/api/health`).then((r) => r.ok).catch(() => false)) break;
+      await new Promise((r) => setTimeout(r, 500));
+    }
+    return await run(base, db, tmp);
+  } finally {
+    server?.kill('SIGTERM');
+    await db.destroy();
+    stopCluster(dataDir);
+    rmSync(tmp, { recursive: true, force: true });
+  }
+}
+
+if (want('load')) {
+  await withServer(async (base, db) => {
+    console.log('[bench] L1: sync load, 20 clients, batches of 50...');
+    results.syncLoad = await syncLoad(base, db, { clients: 20, batch: 50, seconds: Number(process.env.CW_BENCH_SECONDS ?? 30) });
+    console.log(results.syncLoad);
+    console.log('[bench] L2: completion log on 100,000 rows...');
+    results.completionLog = await completionLog(base, db, { rows: 100_000, samples: 200 });
+    console.log(results.completionLog);
+  });
+}
+
+if (want('browser')) {
+  const { benchBrowser } = await import('../bench/browser');
+  results.browser = await benchBrowser(root);
+  console.log(results.browser);
+}
+
+writeFileSync(outFile, `${JSON.stringify(results, null, 2)}\n`);
+console.log(`[bench] written to ${path.relative(root, outFile)}`);
