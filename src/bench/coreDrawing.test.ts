@@ -1,0 +1,54 @@
+import { describe, expect, test } from 'vitest';
+import { pinCore } from '@shared/keying';
+import { UNIT, coreDrawing, labelY } from './coreDrawing';
+import { next, startSession } from './session';
+import { partStatus } from './sessionView';
+import { loadingSteps } from './steps';
+import { clock, mixedKeys, packetCore, primerKeys, sfic6 } from './testing/fixtures';
+
+describe('Core view geometry', () => {
+  // keying-primer worked example: bottom 2, master wafer 4, build-up 8, top 9 (23 units).
+  test('part heights are proportional to units and stack without gaps from the key up', () => {
+    const d = coreDrawing(loadingSteps(pinCore(sfic6, primerKeys), sfic6), sfic6);
+    const one = d.parts.filter((p) => p.chamber === 1);
+    expect(one.map((p) => p.h / UNIT)).toEqual([2, 4, 8, 9]);
+    expect(one[0]!.y + one[0]!.h).toBe(d.baseY);
+    for (let i = 1; i < one.length; i++) expect(one[i]!.y + one[i]!.h).toBe(one[i - 1]!.y);
+    expect(one.map((p) => p.short)).toEqual(['B', 'M1', 'BU', 'T']);
+  });
+
+  // keying-primer: the control shear line sits one sleeve (10 units) above the operating one.
+  test('the control line is a sleeve above the operating line; both span every chamber', () => {
+    const d = coreDrawing(loadingSteps(pinCore(sfic6, mixedKeys), sfic6), sfic6);
+    expect((d.lines.operatingY - d.lines.controlY) / UNIT).toBe(sfic6.sleeveUnits);
+    const last = d.chambers.at(-1)!;
+    expect(d.lines.x1).toBeLessThan(d.chambers[0]!.x);
+    expect(d.lines.x2).toBeGreaterThan(last.x + 60);
+    expect(d.ends).toEqual({ left: 'Back', right: 'Front' });
+  });
+
+  test('status follows the session, and the summary names only the current part', () => {
+    const now = clock();
+    let s = startSession(packetCore(primerKeys), sfic6, now());
+    s = next(next(s, now()), now());
+    const d = coreDrawing(s.plan, sfic6, partStatus(s));
+    expect(d.parts.slice(0, 3).map((p) => p.status)).toEqual(['done', 'done', 'current']);
+    expect(d.parts.at(-1)?.status).toBe('pending');
+    expect(d.chambers[0]?.spring.status).toBe('pending');
+    expect(d.summary).toBe('Core view: 6 chambers, chamber 1 at the back. 2 of 24 parts in. Now: chamber 1, build-up wafer, size 8. Springs not in yet. Not capped yet.');
+  });
+});
+
+describe('Core view labels', () => {
+  // Our own legibility rule: no shear line runs through a part's digits (12 px glyphs).
+  test('a label moves off a line that would cross it, and stays centred otherwise', () => {
+    expect(labelY(100, 60, [])).toBe(136);
+    expect(labelY(100, 60, [130])).toBe(147);
+    expect(labelY(100, 40, [124])).toBe(119);
+    expect(labelY(100, 40, [132])).toBe(126);
+    const d = coreDrawing(loadingSteps(pinCore(sfic6, mixedKeys), sfic6), sfic6);
+    for (const p of d.parts.filter((x) => x.h >= 22)) {
+      for (const line of [d.lines.operatingY, d.lines.controlY]) expect(line < p.labelY - 12 - 1 || line > p.labelY + 1).toBe(true);
+    }
+  });
+});

@@ -1,0 +1,78 @@
+/**
+ * The Key check plan as the technician meets it: the order the keys are tried and the
+ * words for what each one must do. The packet names keys by symbol only.
+ */
+import type { KeyCheckItem, KeyCheckRole } from '@shared/schemas/packet';
+import type { KeyLevel } from '@shared/schemas/records';
+
+// Keys that must turn come first, lowest level up, so a fault shows on the simplest key;
+// the control key next; the key that must not turn last (keying-primer bench procedure).
+const roleRank: Record<KeyCheckRole, number> = { change: 0, cross: 0, master: 1, control: 2, 'must-not-turn': 3 };
+const levelRank: Record<KeyLevel, number> = { change: 0, master: 1, gm: 2, ggm: 3 };
+
+/** The plan in checking order; ties keep the packet's order (Array.prototype.sort is stable). */
+export function keyCheckOrder(plan: readonly KeyCheckItem[]): KeyCheckItem[] {
+  const rank = (item: KeyCheckItem): number => roleRank[item.role] * 10 + (item.role === 'master' && item.level ? levelRank[item.level] : 0);
+  return [...plan].sort((a, b) => rank(a) - rank(b));
+}
+
+export const roleWords: Record<KeyCheckRole, string> = {
+  change: 'Change key',
+  cross: 'Cross-keyed change key',
+  master: 'Master key',
+  control: 'Control key',
+  'must-not-turn': 'Key that must not work',
+};
+
+const levelWords: Record<KeyLevel, string> = { change: 'Change key', master: 'Master key', gm: 'Grand master', ggm: 'Great-grand master' };
+
+/** "Grand master" rather than "Master key" when the packet says the level. */
+export function roleName(item: KeyCheckItem): string {
+  return item.role === 'master' && item.level ? levelWords[item.level] : roleWords[item.role];
+}
+
+/** What must happen, in the words a locksmith uses at the bench. */
+export const expectWords: Record<KeyCheckItem['expect'], { must: string; detail: string }> = {
+  turns: {
+    must: 'Must turn the plug',
+    detail: 'Turn it fully both ways; it should move smoothly and return to the start.',
+  },
+  releases: {
+    must: 'Must turn about 15° and stop',
+    detail: 'That short turn releases the core. Turn it back and take the key out; leave the core in place for now.',
+  },
+  none: {
+    must: 'Must NOT turn',
+    detail: 'Insert it fully and try gently both ways: the plug must not move.',
+  },
+};
+
+export interface FailureChoice {
+  id: 'no-turn' | 'stiff' | 'wrong-turned' | 'no-release' | 'other';
+  label: string;
+}
+
+export const failureChoices: readonly FailureChoice[] = [
+  { id: 'no-turn', label: 'Would not turn' },
+  { id: 'stiff', label: 'Turned but stiff' },
+  { id: 'wrong-turned', label: 'A key that must not work turned' },
+  { id: 'no-release', label: 'Control key would not release' },
+  { id: 'other', label: 'Something else' },
+];
+
+/** The note kept with a failed check: the choice, then the technician's words, within the record's 500 characters. */
+export function failureNote(choice: FailureChoice['id'], text = ''): string {
+  const label = failureChoices.find((c) => c.id === choice)?.label ?? 'Something else';
+  const words = text.trim();
+  return (words ? `${label}: ${words}` : label).slice(0, 500);
+}
+
+/** Only the choices that can happen with this key (a must-not-turn key cannot be "stiff"). */
+export function failureChoicesFor(item: KeyCheckItem): FailureChoice[] {
+  const fits: Record<KeyCheckItem['expect'], FailureChoice['id'][]> = {
+    turns: ['no-turn', 'stiff', 'other'],
+    releases: ['no-release', 'no-turn', 'stiff', 'other'],
+    none: ['wrong-turned', 'other'],
+  };
+  return failureChoices.filter((c) => fits[item.expect].includes(c.id));
+}

@@ -1,0 +1,39 @@
+/**
+ * The Tray as rows of a table: one row per part kind and size, one count per chamber,
+ * and the total. Two-wafer build-ups are spelled out so nobody pulls one thick wafer.
+ */
+import { partKinds, type PartKind, type Tray, type TwoWaferBuildUp } from '@shared/keying';
+
+export interface TrayRow {
+  kind: PartKind;
+  kindLabel: string;
+  size: number;
+  /** Count per chamber, chamber 1 first; 0 where that chamber takes none. */
+  perChamber: number[];
+  total: number;
+}
+
+export const trayKindLabels: Record<PartKind, string> = {
+  bottom: 'Bottom pin',
+  master: 'Master wafer',
+  buildUp: 'Build-up wafer',
+  top: 'Top pin',
+};
+
+export function trayRows(tray: Tray): TrayRow[] {
+  const chambers = [...tray.perChamber].sort((a, b) => a.chamber - b.chamber);
+  return partKinds.flatMap((kind) =>
+    tray.totals[kind].map(({ size, count }) => ({
+      kind,
+      kindLabel: trayKindLabels[kind],
+      size,
+      perChamber: chambers.map((ch) => ch[kind].find((c) => c.size === size)?.count ?? 0),
+      total: count,
+    })),
+  );
+}
+
+/** "Chamber 3: build-up 14 = wafer 9 + wafer 5, ×2" (lower wafer first, as loaded). */
+export function twoWaferWords(b: TwoWaferBuildUp): string {
+  return `Chamber ${b.chamber}: build-up ${b.total} = wafer ${b.wafers[0]} + wafer ${b.wafers[1]}, ×${b.count}`;
+}
