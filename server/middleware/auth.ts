@@ -6,7 +6,7 @@ import type { NextFunction, Request, RequestHandler, Response } from 'express';
 import type { Knex } from 'knex';
 import type { Config } from '../config';
 import type { Role } from '../../shared/schemas/auth';
-import { forbidden, unauthenticated } from '../errors';
+import { forbidden, HttpError, unauthenticated } from '../errors';
 import { verifyAccessToken } from '../services/tokens';
 import type { Actor } from '../services/audit';
 
@@ -38,7 +38,9 @@ export function requireAuth(db: Knex, config: Config): RequestHandler {
     const row = await db('sessions as s')
       .join('users as u', 'u.id', 's.user_id')
       .where({ 's.id': claims.sid, 'u.id': claims.sub })
-      .first('s.revoked_at', 's.expires_at', 'u.active', 'u.email', 'u.name', 'u.role');
+      .first('s.revoked_at', 's.revoked_reason', 's.expires_at', 'u.active', 'u.email', 'u.name', 'u.role');
+    // A tablet revoked by an administrator is told so, so it wipes its packets.
+    if (row?.revoked_reason === 'device-revoked') throw new HttpError('device-revoked', 'This tablet was revoked by an administrator; its packets are wiped. Finished work stays in its outbox.');
     if (!row || row.revoked_at || !row.active || new Date(row.expires_at) < new Date()) {
       throw unauthenticated('This session has ended; sign in again.');
     }

@@ -51,6 +51,7 @@ export function authRouter(db: Knex, config: Config): Router {
     const outcome = await refreshSession(db, config, input.refreshToken);
     if (!outcome.ok) {
       if (outcome.reason === 'reused') await audit(db, { id: null, email: null, ip: req.ip }, 'auth.refresh.reused');
+      if (outcome.reason === 'device-revoked') throw new HttpError('device-revoked', 'This tablet was revoked by an administrator; its packets are wiped. Finished work stays in its outbox.');
       throw new HttpError('unauthenticated', 'Your sign-in has ended; sign in again.');
     }
     res.json({ ...outcome.tokens, user: outcome.user });

@@ -46,7 +46,7 @@ export async function createSession(
   return issue(config, user, (row as { id: string }).id, secret);
 }
 
-export type RefreshOutcome = { ok: true; user: SessionUser; tokens: IssuedTokens } | { ok: false; reason: 'unknown' | 'expired' | 'revoked' | 'reused' | 'inactive' };
+export type RefreshOutcome = { ok: true; user: SessionUser; tokens: IssuedTokens } | { ok: false; reason: 'unknown' | 'expired' | 'revoked' | 'device-revoked' | 'reused' | 'inactive' };
 
 const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
 
@@ -58,9 +58,9 @@ export async function refreshSession(db: Knex, config: Config, refreshToken: str
       .join('users as u', 'u.id', 's.user_id')
       .where('s.id', sessionId)
       .forUpdate()
-      .first('s.id', 's.refresh_hash', 's.expires_at', 's.revoked_at', 'u.id as user_id', 'u.email', 'u.name', 'u.role', 'u.active');
+      .first('s.id', 's.refresh_hash', 's.expires_at', 's.revoked_at', 's.revoked_reason', 'u.id as user_id', 'u.email', 'u.name', 'u.role', 'u.active');
     if (!row) return { ok: false, reason: 'unknown' } as const;
-    if (row.revoked_at) return { ok: false, reason: 'revoked' } as const;
+    if (row.revoked_at) return { ok: false, reason: row.revoked_reason === 'device-revoked' ? 'device-revoked' : 'revoked' } as const;
     if (!row.active) return { ok: false, reason: 'inactive' } as const;
     if (new Date(row.expires_at) < new Date()) return { ok: false, reason: 'expired' } as const;
     if (row.refresh_hash !== sha256(secret)) {

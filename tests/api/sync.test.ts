@@ -152,9 +152,16 @@ describe('core states, installs and mail', () => {
 
   test('a revoked tablet is told to wipe itself and lands nothing', async () => {
     const dev = randomUUID();
+    const onTablet = await h.call('POST', '/api/auth/sign-in', { body: { email: 'tech@demo.corewright.test', password: 'corewright-demo', deviceId: dev } });
     await sync([completionFor(packet.workOrder.id, packet.cores[0]!)], token, dev);
     const admin = await h.tokenFor('admin');
     expect((await h.call('POST', `/api/devices/${dev}/revoke`, { token: admin })).status).toBe(200);
+    // the tablet's own session learns it was revoked (403 device-revoked), on any route and on refresh
+    const told = await h.call('GET', '/api/work-orders?mine=1', { token: onTablet.json.accessToken });
+    expect(told.status).toBe(403);
+    expect(told.json.error.code).toBe('device-revoked');
+    const refresh = await h.call('POST', '/api/auth/refresh', { body: { refreshToken: onTablet.json.refreshToken } });
+    expect(refresh.json.error.code).toBe('device-revoked');
     // revoking the device ended its sessions too: sign in again and try
     const fresh = (await h.signIn('tech@demo.corewright.test')).accessToken;
     const before = await countRows(h.db, 'completions');
