@@ -19,7 +19,8 @@ export function completionsRouter({ db }: Ctx): Router {
     res.set('Content-Type', 'text/csv; charset=utf-8');
     res.set('Content-Disposition', `attachment; filename="completion-log-${new Date().toISOString().slice(0, 10)}.csv"`);
     const columns = ['finishedAt', 'startedAt', 'receivedAt', 'coreTag', 'doorLabel', 'workOrderNumber', 'workOrderTitle', 'technicianName', 'result', 'attemptCount', 'failedChecks', 'id'];
-    const csv = stringify({ header: true, columns, cast: { object: (v) => JSON.stringify(v) } });
+    // RFC 4180: CRLF between records.
+    const csv = stringify({ header: true, columns, record_delimiter: 'windows', cast: { object: (v) => JSON.stringify(v) } });
     csv.pipe(res);
     for await (const row of completionRowsForExport(db, q)) {
       // A cell starting with = + - @ would run as a formula in a spreadsheet: prefix it.

@@ -26,15 +26,19 @@ export interface ImportResult {
   created: number;
 }
 
-function readCsv(buffer: Buffer, required: string[], known: string[]): Record<string, string>[] {
-  let records: Record<string, string>[];
+/** Each record with the line it ends on: the row number a spreadsheet shows (blank lines count). */
+type CsvRow = Record<string, string> & { __row: number };
+
+function readCsv(buffer: Buffer, required: string[], known: string[]): CsvRow[] {
+  let records: CsvRow[];
   try {
-    records = parseCsv(buffer, { columns: (h: string[]) => h.map((c) => c.trim().toLowerCase().replace(/[\s-]+/g, '_')), skip_empty_lines: true, trim: true, bom: true, max_record_size: 4096 });
+    const parsed = parseCsv(buffer, { columns: (h: string[]) => h.map((c) => c.trim().toLowerCase().replace(/[\s-]+/g, '_')), skip_empty_lines: true, trim: true, bom: true, max_record_size: 4096, info: true }) as { record: Record<string, string>; info: { lines: number } }[];
+    records = parsed.map(({ record, info }) => ({ ...record, __row: info.lines }) as CsvRow);
   } catch (err) {
     throw badRequest(`The file is not readable CSV: ${(err as Error).message}. Save it as CSV (comma-separated, UTF-8) with a header row.`);
   }
   if (!records.length) throw badRequest('The file has a header but no rows.');
-  const header = Object.keys(records[0]!);
+  const header = Object.keys(records[0]!).filter((k) => k !== '__row');
   const missing = required.filter((c) => !header.includes(c));
   if (missing.length) throw badRequest(`The header lacks the column(s) ${missing.join(', ')}. Expected columns: ${known.join(', ')}.`, missing.map((c) => ({ field: c, message: 'missing column' })));
   const unknown = header.filter((c) => !known.includes(c));
@@ -44,7 +48,6 @@ function readCsv(buffer: Buffer, required: string[], known: string[]): Record<st
 }
 
 const yes = (v: string | undefined) => /^(1|y|yes|true|x)$/i.test((v ?? '').trim());
-const rowOf = (i: number) => i + 2; // the header is row 1
 
 const levelWords: Record<string, KeyLevel> = { ggm: 'ggm', 'great-grand-master': 'ggm', gm: 'gm', 'grand-master': 'gm', master: 'master', m: 'master', change: 'change', cr: 'change', 'change-key': 'change' };
 
@@ -55,6 +58,7 @@ export async function importKeys(db: Knex, sealer: Sealer, systemId: string, fil
   const records = readCsv(file, ['symbol', 'level', 'bitting'], KEY_COLUMNS);
   const errors: RowError[] = [];
   const existing = new Set(system.keys.map((k) => k.symbol.toUpperCase()));
+  const levelOf = new Map(system.keys.map((k) => [k.symbol.toUpperCase(), k.level]));
   const inFile = new Map<string, number>();
   records.forEach((r, i) => {
     const s = (r.symbol ?? '').toUpperCase();
@@ -62,7 +66,7 @@ export async function importKeys(db: Knex, sealer: Sealer, systemId: string, fil
   });
   const parsed: (KeyInput & { parentSymbol: string | null })[] = [];
   records.forEach((r, i) => {
-    const row = rowOf(i);
+    const row = r.__row;
     const level = levelWords[(r.level ?? '').trim().toLowerCase()];
     const result = KeyInput.safeParse({
       symbol: r.symbol,
@@ -85,9 +89,11 @@ export async function importKeys(db: Knex, sealer: Sealer, systemId: string, fil
     else if (k.bitting === system.control) errors.push({ row, column: 'bitting', message: "this is the control key's bitting; an operating key must differ" });
     const symbol = k.symbol.toUpperCase();
     if (existing.has(symbol)) errors.push({ row, column: 'symbol', message: `${symbol} is in the key system already` });
-    if (inFile.get(symbol) !== i) errors.push({ row, column: 'symbol', message: `${symbol} appears more than once in the file (first on row ${rowOf(inFile.get(symbol)!)})` });
+    if (inFile.get(symbol) !== i) errors.push({ row, column: 'symbol', message: `${symbol} appears more than once in the file (first on row ${records[inFile.get(symbol)!]!.__row})` });
     const parent = (r.parent ?? '').trim().toUpperCase() || null;
     if (parent && !existing.has(parent) && !inFile.has(parent)) errors.push({ row, column: 'parent', message: `no key ${parent} in the file or the key system` });
+    const parentLevel = parent ? (levelOf.get(parent) ?? levelWords[(records[inFile.get(parent) ?? -1]?.level ?? '').trim().toLowerCase()]) : undefined;
+    if (parentLevel === 'change') errors.push({ row, column: 'parent', message: `${parent} is a change key; a key hangs under a master` });
     if (parent && parent === symbol) errors.push({ row, column: 'parent', message: 'a key cannot be its own parent' });
     parsed.push({ ...k, symbol, parentSymbol: parent });
   });
@@ -110,7 +116,7 @@ export async function importDoors(db: Knex, file: Buffer, commit: boolean): Prom
   const errors: RowError[] = [];
   const parsed: DoorInput[] = [];
   records.forEach((r, i) => {
-    const row = rowOf(i);
+    const row = r.__row;
     let keySystemId: string | null = null;
     let keyId: string | null = null;
     if (r.key_system) {
@@ -131,7 +137,7 @@ export async function importDoors(db: Knex, file: Buffer, commit: boolean): Prom
     }
     const label = result.data.label.toLowerCase();
     if (existing.has(label)) errors.push({ row, column: 'label', message: `a door labelled "${result.data.label}" exists already` });
-    if (seen.has(label)) errors.push({ row, column: 'label', message: `"${result.data.label}" appears more than once (first on row ${rowOf(seen.get(label)!)})` });
+    if (seen.has(label)) errors.push({ row, column: 'label', message: `"${result.data.label}" appears more than once (first on row ${records[seen.get(label)!]!.__row})` });
     else seen.set(label, i);
     parsed.push(result.data);
   });

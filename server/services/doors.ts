@@ -47,11 +47,14 @@ export async function getDoor(db: Knex, id: string) {
   return door;
 }
 
-async function checkKey(trx: Knex, input: Partial<DoorInput>): Promise<void> {
-  if (!input.keyId) return;
+/** A door's key must be in the door's key system; a key given alone brings its system. */
+async function checkKey(trx: Knex, input: Partial<DoorInput>, currentSystem: string | null = null): Promise<Partial<DoorInput>> {
+  if (!input.keyId) return input;
   const key = await trx('keys').where({ id: input.keyId }).first('key_system_id', 'level');
   if (!key) throw badRequest('The key for this door does not exist.', [{ field: 'keyId', message: 'unknown key' }]);
-  if (input.keySystemId && key.key_system_id !== input.keySystemId) throw badRequest('The key is not in the chosen key system.', [{ field: 'keyId', message: 'not in this key system' }]);
+  const system = input.keySystemId !== undefined ? input.keySystemId : currentSystem;
+  if (system && key.key_system_id !== system) throw badRequest("The key is not in the door's key system.", [{ field: 'keyId', message: 'not in this key system' }]);
+  return { ...input, keySystemId: key.key_system_id };
 }
 
 function row(input: Partial<DoorInput>) {
@@ -75,20 +78,22 @@ export async function createDoors(db: Knex, inputs: DoorInput[]): Promise<string
     if (dupInBatch) throw conflict(`The label "${dupInBatch}" appears twice.`);
     const taken = await trx('doors').whereRaw('lower(label) = any(?)', [labels]).pluck('label');
     if (taken.length) throw conflict(`A door labelled "${taken[0]}" exists already.`, [{ field: 'label', message: 'already used' }]);
-    for (const d of inputs) await checkKey(trx, d);
-    const rows = await trx('doors').insert(inputs.map(row)).returning('id');
+    const checked: Partial<DoorInput>[] = [];
+    for (const d of inputs) checked.push(await checkKey(trx, d));
+    const rows = await trx('doors').insert(checked.map(row)).returning('id');
     return rows.map((r: { id: string }) => r.id);
   });
 }
 
 export async function updateDoor(db: Knex, id: string, input: Partial<DoorInput>): Promise<void> {
   await db.transaction(async (trx) => {
-    if (!(await trx('doors').where({ id }).first('id'))) throw notFound('That door');
+    const current = await trx('doors').where({ id }).first('id', 'key_system_id');
+    if (!current) throw notFound('That door');
     if (input.label && (await trx('doors').whereRaw('lower(label) = ?', [input.label.toLowerCase()]).whereNot({ id }).first('id'))) {
       throw conflict(`A door labelled "${input.label}" exists already.`, [{ field: 'label', message: 'already used' }]);
     }
-    await checkKey(trx, input);
-    await trx('doors').where({ id }).update({ ...row(input), updated_at: trx.fn.now() });
+    const checked = await checkKey(trx, input, current.key_system_id);
+    await trx('doors').where({ id }).update({ ...row(checked), updated_at: trx.fn.now() });
   });
 }
 

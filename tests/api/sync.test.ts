@@ -33,7 +33,7 @@ describe('idempotency', () => {
     expect(r2.json).toEqual(r3.json);
     expect(r2.json.duplicates.sort()).toEqual(r1.json.accepted.sort());
     expect(r2.json.accepted).toEqual([]);
-    expect((await countRows(h.db, 'completions')).completions).toBe(before.completions + 3);
+    expect((await countRows(h.db, 'completions')).completions).toBe(before.completions! + 3);
   });
 
   test('S2: the same client id with another payload is refused and the stored row stays as it was', async () => {
@@ -93,7 +93,7 @@ describe('partial batches', () => {
     expect(res.json.accepted).toEqual([valid.clientId]);
     expect(res.json.duplicates).toEqual([dup.clientId]);
     expect(res.json.rejected).toEqual([expect.objectContaining({ clientId: foreign.clientId, error: expect.objectContaining({ code: 'forbidden' }) })]);
-    expect((await countRows(h.db, 'completions')).completions).toBe(before.completions + 1);
+    expect((await countRows(h.db, 'completions')).completions).toBe(before.completions! + 1);
     expect(await h.db('audit_events').where({ action: 'access.denied', target_id: foreign.clientId }).first('id')).toBeTruthy();
   });
 
