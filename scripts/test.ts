@@ -2,7 +2,8 @@
  * `npm test`: every check, against a throw-away Postgres cluster of its own (a temporary
  * folder, a free port above 55432, fsync off), so a running `npm start` is not disturbed.
  * Steps: type-check, lint, unit, API, client build, browser tests. The cluster is stopped
- * and removed whatever the outcome. `npm test -- unit api` runs only the steps named.
+ * and removed whatever the outcome. `npm test -- unit api` runs only the steps named;
+ * other words filter test files (`npm test -- e2e bench-offline`).
  */
 import { spawnSync } from 'node:child_process';
 import { chmodSync, mkdtempSync, rmSync } from 'node:fs';
@@ -16,6 +17,8 @@ const all = ['typecheck', 'lint', 'unit', 'api', 'e2e'] as const;
 type Step = (typeof all)[number];
 const asked = process.argv.slice(2).filter((a): a is Step => (all as readonly string[]).includes(a));
 const steps: readonly Step[] = asked.length ? asked : all;
+/** Anything else names test files: `npm test -- e2e bench-offline` runs that spec only. */
+const filters = process.argv.slice(2).filter((a) => !(all as readonly string[]).includes(a));
 
 const tmp = mkdtempSync('/tmp/corewright-test-');
 chmodSync(tmp, 0o755); // the postgres OS user must reach the cluster folder
@@ -62,10 +65,10 @@ try {
     results.push({ step: 'typecheck', ok: run('typecheck', 'npx', ['vue-tsc', '--noEmit', '-p', 'tsconfig.json']) && run('typecheck shared/', 'npx', ['tsc', '--noEmit', '-p', 'shared/tsconfig.json']) });
   }
   if (steps.includes('lint')) results.push({ step: 'lint', ok: run('lint', 'npx', ['eslint', '.', '--max-warnings=0']) });
-  if (steps.includes('unit')) results.push({ step: 'unit', ok: run('unit', 'npx', ['vitest', 'run', '--project', 'unit'], base) });
+  if (steps.includes('unit')) results.push({ step: 'unit', ok: run('unit', 'npx', ['vitest', 'run', '--project', 'unit', ...filters], base) });
   if (steps.includes('api')) {
     const url = await freshDatabase('corewright_api');
-    results.push({ step: 'api', ok: run('api', 'npx', ['vitest', 'run', '--project', 'api'], { ...base, DATABASE_URL: url, CW_CLUSTER_URL: cluster!.url }) });
+    results.push({ step: 'api', ok: run('api', 'npx', ['vitest', 'run', '--project', 'api', ...filters], { ...base, DATABASE_URL: url, CW_CLUSTER_URL: cluster!.url }) });
   }
   if (steps.includes('e2e')) {
     ensureChromium();
@@ -73,7 +76,7 @@ try {
     const built = run('client build', 'npx', ['vite', 'build', '--outDir', outDir, '--emptyOutDir', '--logLevel', 'warn']);
     const url = await freshDatabase('corewright_e2e');
     const env = { ...base, DATABASE_URL: url, CW_CLUSTER_URL: cluster!.url, CW_STATIC_DIR: outDir, CW_TMP: tmp, PORT: String(await freePort(8180)) };
-    results.push({ step: 'e2e', ok: built && run('e2e', 'npx', ['playwright', 'test'], env) });
+    results.push({ step: 'e2e', ok: built && run('e2e', 'npx', ['playwright', 'test', ...filters], env) });
   }
 } catch (err) {
   console.error(`[test] ${(err as Error).stack ?? err}`);

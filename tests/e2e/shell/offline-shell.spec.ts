@@ -1,6 +1,6 @@
 // The shell: sign-in, role-based navigation, and an offline reload served by the service worker.
 import { expect, test } from '@playwright/test';
-import { demo, loadedFontFamilies, serviceWorkerReady, signIn } from '../support/session';
+import { answerVault, demo, loadedFontFamilies, serviceWorkerReady, signIn } from '../support/session';
 
 test('a wrong password shows the server message and stays on sign-in', async ({ page }) => {
   await page.goto('/sign-in');
@@ -24,6 +24,8 @@ test('the technician sees the shell, then it reloads offline with its fonts and 
 
   await context.setOffline(true);
   await page.reload();
+  // the Bench asks for the tablet's passphrase again after a reload: it unlocks offline
+  await answerVault(page);
   await expect(page.getByTestId('user-name')).toContainText('Robin Tech');
   await expect(page.getByTestId('connection')).toContainText('Offline');
   const fonts = await loadedFontFamilies(page);

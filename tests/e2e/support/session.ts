@@ -7,12 +7,30 @@ export const demo = {
   admin: 'admin@demo.corewright.test',
 } as const;
 
+/** The passphrase the browser tests give the tablet's vault. */
+export const TABLET_PASSPHRASE = 'brass slate paper teal';
+
+/**
+ * Signs in. A technician lands on the Bench, which first asks for the tablet's passphrase
+ * (set on first use, typed after a reload): the helper answers it.
+ */
 export async function signIn(page: Page, email: string, password = DEMO_PASSWORD): Promise<void> {
   await page.goto('/sign-in');
   await page.getByTestId('email').fill(email);
   await page.getByTestId('password').fill(password);
   await page.getByTestId('sign-in').click();
+  await expect(page.getByTestId('user-menu').or(page.getByTestId('passphrase'))).toBeVisible();
+  if (await page.getByTestId('passphrase').isVisible()) await answerVault(page);
   await expect(page.getByTestId('user-menu')).toBeVisible();
+}
+
+/** Sets up or unlocks the tablet's vault on the unlock page. */
+export async function answerVault(page: Page, passphrase = TABLET_PASSPHRASE): Promise<void> {
+  await page.getByTestId('passphrase').fill(passphrase);
+  if (await page.getByTestId('passphrase-confirm').isVisible()) {
+    await page.getByTestId('passphrase-confirm').fill(passphrase);
+    await page.getByTestId('setup').click();
+  } else await page.getByTestId('unlock').click();
 }
 
 /** Resolves once the service worker is active, so the next load can come from its cache. */

@@ -1,0 +1,64 @@
+/**
+ * Holds one core's Bench session on the tablet. Every move is saved (encrypted) before the
+ * screen moves on; the move that finishes the core writes the completion into the outbox in
+ * the same transaction as the final state (reliability.md S10), before anything else happens.
+ */
+import { ref, shallowRef } from 'vue';
+import type { Packet, PacketCore } from '@shared/schemas/packet';
+import * as S from '@/bench/session';
+import { deserialise, serialise } from '@/bench/sessionData';
+import { benchBlocker } from '@/bench/steps';
+import { bench, recordFinished, type WriteResult } from '@/offline';
+import { progressOf, type CoreProgress, type CoreStatus } from '@/stores/bench';
+
+export function useBenchSession() {
+  const session = shallowRef<S.BenchSession | null>(null);
+  const progress = ref<CoreProgress | null>(null);
+  const blocker = ref<string | null>(null);
+  const saveError = ref<string | null>(null);
+  let packet: Packet | null = null;
+  let core: PacketCore | null = null;
+
+  async function open(p: Packet, c: PacketCore): Promise<void> {
+    packet = p;
+    core = c;
+    blocker.value = benchBlocker(c.pinning, p.profile);
+    progress.value = await progressOf(c.id);
+    if (blocker.value) return;
+    session.value = progress.value?.session ? deserialise(progress.value.session) : S.startSession(c, p.profile, new Date());
+  }
+
+  function statusFor(s: S.BenchSession): CoreStatus {
+    if (s.phase === 'done') return s.result === 'passed' ? 'finished' : 'set-aside';
+    return s.phase === 'rebuild' ? 'rebuild' : 'in-progress';
+  }
+
+  function failed(result: WriteResult): boolean {
+    saveError.value = result.failed[0]?.message ?? null;
+    return result.failed.length > 0;
+  }
+
+  /** Applies one move; the screen changes only once the move is stored. */
+  async function apply(move: (s: S.BenchSession, now: Date) => S.BenchSession): Promise<boolean> {
+    const current = session.value;
+    if (!current || !packet || !core) return false;
+    const nextState = move(current, new Date());
+    if (nextState === current) return false;
+    const base = { coreId: core.id, workOrderId: packet.workOrder.id, updatedAt: nextState.updatedAt, session: serialise(nextState) };
+    if (nextState.phase === 'done') {
+      const clientId = crypto.randomUUID();
+      const record = S.finish(nextState, { clientId, workOrderId: packet.workOrder.id });
+      const next: CoreProgress = { ...base, status: statusFor(nextState), completionId: clientId };
+      if (failed(await recordFinished({ coreId: core.id, progress: next }, record))) return false;
+      progress.value = next;
+    } else {
+      const next: CoreProgress = { ...progress.value, ...base, status: statusFor(nextState) };
+      if (failed(await bench.saveProgress(core.id, next))) return false;
+      progress.value = next;
+    }
+    session.value = nextState;
+    return true;
+  }
+
+  return { session, progress, blocker, saveError, open, apply };
+}
