@@ -1,5 +1,7 @@
 import type { RouteRecordRaw } from 'vue-router';
 import type { Role } from '@shared/schemas/auth';
+import { useSessionStore } from '@/stores/session';
+import { benchRoutes, unlockRoute } from './benchRoutes';
 
 declare module 'vue-router' {
   interface RouteMeta {
@@ -11,20 +13,46 @@ declare module 'vue-router' {
 }
 
 const office: Role[] = ['supervisor', 'admin'];
+const admin: Role[] = ['admin'];
+
+/** Supervisors and admins land on the Overview; technicians on the Bench. */
+function homeFor() {
+  return useSessionStore().hasRole(...office) ? { name: 'overview' } : { name: 'bench.home' };
+}
+
+// ---- the office console (supervisors and admins) -----------------------------------------
+const consoleRoutes: RouteRecordRaw[] = [
+  { path: 'overview', name: 'overview', component: () => import('@/pages/OverviewPage.vue'), meta: { roles: office, title: 'Overview' } },
+  { path: 'work-orders', name: 'workOrders.list', component: () => import('@/pages/WorkOrdersPage.vue'), meta: { roles: office, title: 'Work orders' } },
+  { path: 'work-orders/new', name: 'workOrders.new', component: () => import('@/pages/WorkOrderNewPage.vue'), meta: { roles: office, title: 'New work order' } },
+  { path: 'work-orders/:id', name: 'workOrders.detail', component: () => import('@/pages/WorkOrderDetailPage.vue'), meta: { roles: office, title: 'Work order' } },
+  { path: 'work-orders/:id/print', name: 'workOrders.print', component: () => import('@/pages/PrintChartsPage.vue'), meta: { roles: office, title: 'Pinning charts and tray' } },
+  { path: 'work-orders/:id/tags', name: 'workOrders.tags', component: () => import('@/pages/PrintTagsPage.vue'), meta: { roles: office, title: 'Core tags' } },
+  { path: 'completions', name: 'completions.list', component: () => import('@/pages/CompletionLogPage.vue'), meta: { roles: office, title: 'Completion log' } },
+  { path: 'key-systems', name: 'keySystems.list', component: () => import('@/pages/KeySystemsPage.vue'), meta: { roles: office, title: 'Key systems' } },
+  { path: 'key-systems/:id', name: 'keySystems.detail', component: () => import('@/pages/KeySystemDetailPage.vue'), meta: { roles: office, title: 'Key system' } },
+  { path: 'profiles', name: 'profiles.list', component: () => import('@/pages/ProfilesPage.vue'), meta: { roles: office, title: 'Profiles' } },
+  { path: 'doors', name: 'doors.list', component: () => import('@/pages/DoorsPage.vue'), meta: { roles: office, title: 'Doors' } },
+  { path: 'doors/:id/history', name: 'doors.history', component: () => import('@/pages/DoorHistoryPage.vue'), meta: { roles: office, title: 'Door history' } },
+  { path: 'users', name: 'users.list', component: () => import('@/pages/UsersPage.vue'), meta: { roles: admin, title: 'Users' } },
+  { path: 'audit', name: 'audit.list', component: () => import('@/pages/AuditLogPage.vue'), meta: { roles: admin, title: 'Audit log' } },
+];
 
 export const routes: RouteRecordRaw[] = [
+  unlockRoute,
   { path: '/sign-in', name: 'signIn', component: () => import('@/pages/SignInPage.vue'), meta: { public: true, title: 'Sign in' } },
+  // From an invitation e-mail: /set-password?token=...
+  { path: '/set-password', name: 'setPassword', component: () => import('@/pages/SetPasswordPage.vue'), meta: { public: true, title: 'Choose a password' } },
+  // The local demo's captured mail; the server answers it only outside production.
+  { path: '/dev/mailbox', name: 'dev.mailbox', component: () => import('@/pages/MailboxPage.vue'), meta: { public: true, title: 'Development mailbox' } },
   {
     path: '/',
     component: () => import('@/layouts/MainLayout.vue'),
     children: [
-      { path: '', name: 'home', redirect: () => ({ name: 'bench.home' }) },
-      { path: 'bench', name: 'bench.home', component: () => import('@/pages/BenchPage.vue'), meta: { title: 'Bench' } },
-      { path: 'work-orders', name: 'workOrders.list', component: () => import('@/pages/WorkOrdersPage.vue'), meta: { roles: office, title: 'Work orders' } },
-      { path: 'completions', name: 'completions.list', component: () => import('@/pages/CompletionLogPage.vue'), meta: { roles: office, title: 'Completion log' } },
-      { path: 'key-systems', name: 'keySystems.list', component: () => import('@/pages/KeySystemsPage.vue'), meta: { roles: office, title: 'Key systems' } },
-      { path: 'doors', name: 'doors.list', component: () => import('@/pages/DoorsPage.vue'), meta: { roles: office, title: 'Doors' } },
-      { path: 'users', name: 'users.list', component: () => import('@/pages/UsersPage.vue'), meta: { roles: ['admin'], title: 'Users' } },
+      { path: '', name: 'home', redirect: homeFor },
+      // ---- the Bench (technicians): src/router/benchRoutes.ts ----
+      ...benchRoutes,
+      ...consoleRoutes,
       { path: 'cautions', name: 'cautions', component: () => import('@/pages/CautionsPage.vue'), meta: { title: 'Cautions' } },
     ],
   },
@@ -33,10 +61,13 @@ export const routes: RouteRecordRaw[] = [
 
 /** The navigation, in order; shown to the roles each route allows. */
 export const navigation = [
+  { name: 'overview', label: 'Overview', icon: 'dashboard' },
   { name: 'bench.home', label: 'Bench', icon: 'handyman' },
   { name: 'workOrders.list', label: 'Work orders', icon: 'assignment' },
   { name: 'completions.list', label: 'Completion log', icon: 'fact_check' },
   { name: 'keySystems.list', label: 'Key systems', icon: 'key' },
+  { name: 'profiles.list', label: 'Profiles', icon: 'tune' },
   { name: 'doors.list', label: 'Doors', icon: 'sensor_door' },
   { name: 'users.list', label: 'Users', icon: 'group' },
+  { name: 'audit.list', label: 'Audit log', icon: 'policy' },
 ] as const;
