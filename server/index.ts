@@ -3,6 +3,8 @@ import { createApp } from './app';
 import { loadConfig } from './config';
 import { createDb } from './db';
 import { startFakeSmtp, type FakeSmtp } from './dev/fakeSmtp';
+import { createMailer } from './services/mail';
+import { sendPending } from './services/notifier';
 
 let config = loadConfig();
 let smtp: FakeSmtp | undefined;
@@ -12,7 +14,13 @@ if (process.env.CW_FAKE_SMTP === '1' && config.env !== 'production') {
   console.log(`[server] fake SMTP on 127.0.0.1:${smtp.port}; mailbox at /api/dev/mailbox`);
 }
 const db = createDb(config.databaseUrl);
-const app = createApp({ db, config, smtp });
+const mailer = createMailer(config);
+const app = createApp({ db, config, smtp, mailer });
+// Mail owed by work that landed before a crash or restart, then every minute.
+const sendOwed = () => void sendPending({ db, mailer, config }).catch((err) => console.error('[server] sending notifications failed', (err as Error).message));
+sendOwed();
+const owedTimer = setInterval(sendOwed, 60_000);
+owedTimer.unref();
 const server = app.listen(config.port, config.host, () => {
   console.log(`[server] Corewright on http://${config.host}:${config.port}`);
 });

@@ -5,42 +5,12 @@ import { actorOf, allow } from '../middleware/auth';
 import { parse } from '../middleware/validate';
 import { audit } from '../services/audit';
 import { touchDevice } from '../services/devices';
-import { mails } from '../services/mail';
-import { landBatch, type SyncEvent } from '../services/sync';
-import { getWorkOrder } from '../services/workOrders';
+import { landBatch } from '../services/sync';
+import { sendPending } from '../services/notifier';
 
 export function syncRouter(ctx: Ctx): Router {
-  const { db, sealer, mailer, config } = ctx;
+  const { db, sealer } = ctx;
   const r = Router();
-
-  async function supervisorsFor(workOrderId: string | null): Promise<string[]> {
-    if (workOrderId) {
-      const creator = await db('work_orders as w').join('users as u', 'u.id', 'w.created_by').where('w.id', workOrderId).where('u.active', true).whereIn('u.role', ['supervisor', 'admin']).first('u.email');
-      if (creator) return [creator.email];
-    }
-    return db('users').where({ role: 'supervisor', active: true }).pluck('email');
-  }
-
-  async function notify(events: SyncEvent[]): Promise<void> {
-    for (const e of events) {
-      if (e.kind === 'work-order-done') {
-        const wo = await getWorkOrder(db, e.workOrderId);
-        for (const to of await supervisorsFor(wo.id)) await mailer.send({ to, ...mails.workOrderFinished({ number: wo.number, title: wo.title, cores: wo.coreCount, link: `${config.publicUrl}/completions?workOrderId=${wo.id}` }) });
-      } else {
-        const c = await db('completions as cp')
-          .join('cores as c', 'c.id', 'cp.core_id')
-          .join('users as u', 'u.id', 'cp.technician_id')
-          .leftJoin('doors as d', 'd.id', 'c.door_id')
-          .leftJoin('work_orders as w', 'w.id', 'cp.work_order_id')
-          .where('cp.id', e.completionId)
-          .first('c.tag', 'd.label', 'u.name', 'w.id as woId', 'w.number', 'w.title', 'cp.attempts');
-        const notes = (c.attempts as { keyChecks: { result: string; symbol: string; note?: string }[] }[]).flatMap((a) => a.keyChecks.filter((k) => k.result === 'failed').map((k) => `${k.symbol}: ${k.note ?? 'failed'}`));
-        for (const to of await supervisorsFor(c.woId)) {
-          await mailer.send({ to, ...mails.keyCheckFailed({ number: c.number, title: c.title, tag: c.tag, door: c.label, technician: c.name, notes, link: `${config.publicUrl}/completions?result=failed` }) });
-        }
-      }
-    }
-  }
 
   // A batch of 100 completions with their steps is larger than other bodies: 2 MB here.
   r.post('/sync', express.json({ limit: '2mb' }), allow('technician', 'supervisor', 'admin'), async (req, res) => {
@@ -65,7 +35,7 @@ export function syncRouter(ctx: Ctx): Router {
       await audit(db, actorOf(req), 'access.denied', { type: 'sync-record', id: rej.clientId ?? String(rej.index) });
     }
     res.json(response);
-    void notify(events).catch((err) => console.error('[sync] notification failed', err));
+    if (events.length) void sendPending(ctx).catch((err) => console.error('[sync] sending notifications failed', err));
   });
   return r;
 }

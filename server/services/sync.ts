@@ -213,6 +213,8 @@ export async function landBatch(db: Knex, user: SyncUser, deviceId: string, raw:
         .returning('w.id');
       for (const d of done as { id: string }[]) events.push({ kind: 'work-order-done', workOrderId: d.id });
     }
+    // The mail this work owes is stored with it (services/notifier.ts sends it).
+    if (events.length) await trx('notifications').insert(events.map((e) => ({ kind: e.kind, ref_id: e.kind === 'work-order-done' ? e.workOrderId : e.completionId }))).onConflict(['kind', 'ref_id']).ignore();
     return { accepted: new Set(accepted), refused };
   }));
   for (const r of landed.refused) reject(r.index, r.clientId, 'unprocessable', r.message);

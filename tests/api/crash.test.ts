@@ -254,11 +254,12 @@ test(
     // a duplicate answer means the stored payload hash equals this record's (server/services/sync.ts)
     expect([...replay!.body.duplicates].sort()).toEqual([...ids].sort());
 
-    // Mail, counted while the last server still runs (see the figures): what it accepted must be mailed.
+    // Mail is stored with the work it is owed for (services/notifier.ts): every failed check and
+    // the finished work order is mailed, even when the server that landed it was killed.
     const failedMails = () => h.smtp.messages.filter((m) => m.subject.startsWith('Failed key check')).length;
     const finishedMails = () => h.smtp.messages.filter((m) => m.subject.startsWith(`Work order #${packet.workOrder.number} finished`)).length;
-    const mailedLast = { failed: [...failedCheck].filter((id) => acceptedIn.get(id) === 0).length, finished: doneBefore ? 0 : 1 };
-    for (let i = 0; i < 100 && (failedMails() < mailedLast.failed || finishedMails() < mailedLast.finished); i++) await sleep(100);
+    const mailedLast = { failed: failedCheck.size, finished: 1 };
+    for (let i = 0; i < 150 && (failedMails() < mailedLast.failed || finishedMails() < mailedLast.finished); i++) await sleep(100);
     await server.kill();
 
     console.log(
@@ -273,7 +274,7 @@ test(
     // The crash path was exercised: enough kills, and some cut a request off before its answer.
     expect(stats.kills, where()).toBeGreaterThanOrEqual(MIN_KILLS);
     expect(stats.noReply, where()).toBeGreaterThan(0);
-    // The child's mail does reach the harness: what the final, unkilled server accepted was mailed.
+    // Nothing owed was lost to a kill (a crash between sending and marking may repeat one).
     expect(failedMails()).toBeGreaterThanOrEqual(mailedLast.failed);
     expect(finishedMails()).toBeGreaterThanOrEqual(mailedLast.finished);
 

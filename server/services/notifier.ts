@@ -1,0 +1,68 @@
+/**
+ * Sends the mail that synced work owes (rows of `notifications`, written with the work).
+ * Each row is locked while it is sent, so two server processes never send it both. A crash
+ * between sending and marking may repeat a mail, never lose one.
+ */
+import type { Knex } from 'knex';
+import type { Config } from '../config';
+import { mails, type Mailer } from './mail';
+import { getWorkOrder } from './workOrders';
+
+export type NotificationKind = 'key-check-failed' | 'work-order-done';
+
+interface Deps {
+  db: Knex;
+  mailer: Mailer;
+  config: Config;
+}
+
+async function supervisorsFor(db: Knex, workOrderId: string | null): Promise<string[]> {
+  if (workOrderId) {
+    const creator = await db('work_orders as w').join('users as u', 'u.id', 'w.created_by').where('w.id', workOrderId).where('u.active', true).whereIn('u.role', ['supervisor', 'admin']).first('u.email');
+    if (creator) return [creator.email];
+  }
+  return db('users').where({ role: 'supervisor', active: true }).pluck('email');
+}
+
+async function deliver({ db, mailer, config }: Deps, kind: NotificationKind, refId: string): Promise<void> {
+  if (kind === 'work-order-done') {
+    const wo = await getWorkOrder(db, refId);
+    for (const to of await supervisorsFor(db, wo.id)) await mailer.send({ to, ...mails.workOrderFinished({ number: wo.number, title: wo.title, cores: wo.coreCount, link: `${config.publicUrl}/completions?workOrderId=${wo.id}` }) });
+    return;
+  }
+  const c = await db('completions as cp')
+    .leftJoin('work_orders as w', 'w.id', 'cp.work_order_id')
+    .where('cp.id', refId)
+    .first('cp.core_tag', 'cp.door_label', 'cp.technician_name', 'w.id as woId', 'w.number', 'w.title', 'cp.attempts');
+  if (!c) return;
+  const notes = (c.attempts as { keyChecks: { result: string; symbol: string; note?: string }[] }[]).flatMap((a) => a.keyChecks.filter((k) => k.result === 'failed').map((k) => `${k.symbol}: ${k.note ?? 'failed'}`));
+  for (const to of await supervisorsFor(db, c.woId)) {
+    await mailer.send({ to, ...mails.keyCheckFailed({ number: c.number, title: c.title, tag: c.core_tag, door: c.door_label, technician: c.technician_name, notes, link: `${config.publicUrl}/completions?result=failed` }) });
+  }
+}
+
+/** Sends what is owed, one row at a time; returns how many were sent. */
+export async function sendPending(deps: Deps, limit = 50): Promise<number> {
+  const tried: string[] = [];
+  let sent = 0;
+  while (tried.length < limit) {
+    // The row stays locked while its mail goes out: a process killed mid-send drops its
+    // connection, the lock goes with it, and the next server sends the mail.
+    const outcome = await deps.db.transaction(async (trx) => {
+      const n = (await trx('notifications').whereNull('sent_at').where('attempts', '<', 10).whereNotIn('id', tried).orderBy('created_at').forUpdate().skipLocked().first('id', 'kind', 'ref_id')) as { id: string; kind: NotificationKind; ref_id: string } | undefined;
+      if (!n) return null;
+      tried.push(n.id);
+      try {
+        await deliver(deps, n.kind, n.ref_id);
+        await trx('notifications').where({ id: n.id }).update({ sent_at: trx.fn.now(), attempts: trx.raw('attempts + 1'), last_error: null });
+        return 'sent';
+      } catch (err) {
+        await trx('notifications').where({ id: n.id }).update({ attempts: trx.raw('attempts + 1'), last_error: (err as Error).message.slice(0, 500) });
+        return 'failed';
+      }
+    });
+    if (outcome === null) break;
+    if (outcome === 'sent') sent++;
+  }
+  return sent;
+}
