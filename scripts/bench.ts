@@ -11,6 +11,7 @@ import path from 'node:path';
 import { completionLog, syncLoad } from '../bench/load';
 import { createDb, migrateLatest } from '../server/db';
 import { ensureDatabase, freePort, startCluster, stopCluster } from './lib/postgres';
+import { ensureChromium } from './lib/chromium';
 
 const root = path.resolve(import.meta.dirname, '..');
 const parts = process.argv.slice(2).filter((a) => ['engine', 'load', 'browser'].includes(a));
@@ -25,9 +26,13 @@ if (want('engine')) {
   results.engine = JSON.parse(readFileSync(path.join(root, 'bench/keying-results.json'), 'utf8'));
 }
 
-async function withServer<T>(run: (base: string, db: ReturnType<typeof createDb>, tmp: string) => Promise<T>): Promise<T> {
+async function withServer<T>(run: (base: string, db: ReturnType<typeof createDb>, tmp: string) => Promise<T>, opts: { build?: boolean } = {}): Promise<T> {
   const tmp = mkdtempSync('/tmp/corewright-bench-');
   chmodSync(tmp, 0o755);
+  if (opts.build) {
+    const r = spawnSync('npx', ['vite', 'build', '--outDir', path.join(tmp, 'dist'), '--emptyOutDir', '--logLevel', 'warn'], { cwd: root, stdio: 'inherit' });
+    if (r.status !== 0) throw new Error('the client build failed');
+  }
   const dataDir = path.join(tmp, 'pg');
   const cluster = startCluster({ dataDir, port: await freePort(56432) });
   const url = await ensureDatabase(cluster, 'corewright_bench');
@@ -68,8 +73,9 @@ if (want('load')) {
 
 if (want('browser')) {
   const { benchBrowser } = await import('../bench/browser');
-  results.browser = await benchBrowser(root);
-  console.log(results.browser);
+  ensureChromium();
+  results.browser = await withServer((base) => benchBrowser(base), { build: true });
+  console.log(JSON.stringify(results.browser, null, 2));
 }
 
 writeFileSync(outFile, `${JSON.stringify(results, null, 2)}\n`);

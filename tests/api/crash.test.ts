@@ -234,7 +234,6 @@ test(
       stats.trace.push(`#${round} ${atCommit ? 'at the commit' : `+${delay} ms`}: ${trace.join(' ')} -> ${outbox.size} left${stored.length ? `, ${stored.length} of them stored` : ''}`);
     }
     const killPhaseMs = Date.now() - started;
-    const doneBefore = (await h.db('work_orders').where({ id: wo }).first('status')).status === 'done';
     const before = Number(((await h.db('completions').whereIn('id', ids).count({ n: '*' }).first()) as { n: string | number }).n);
 
     // The final start: send until the outbox is empty (bounded), then replay all 100.
