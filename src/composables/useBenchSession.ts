@@ -1,7 +1,10 @@
 /**
- * Holds one core's Bench session on the tablet. Every move is saved (encrypted) before the
- * screen moves on; the move that finishes the core writes the completion into the outbox in
- * the same transaction as the final state (reliability.md S10), before anything else happens.
+ * Holds one core's Bench session on the tablet. Every move is saved (encrypted), in order,
+ * right after the screen moves on: each save holds the whole session, so a save that fails
+ * is made good by the next, and a crash costs at most the last part loaded (the Core view
+ * shows what is in). The move that finishes the core is different: the completion goes
+ * into the outbox in the same transaction as the final state (reliability.md S10), and the
+ * screen says "done" only once it is stored.
  */
 import { ref, shallowRef } from 'vue';
 import type { Packet, PacketCore } from '@shared/schemas/packet';
@@ -18,6 +21,7 @@ export function useBenchSession() {
   const saveError = ref<string | null>(null);
   let packet: Packet | null = null;
   let core: PacketCore | null = null;
+  let saving: Promise<unknown> = Promise.resolve();
 
   async function open(p: Packet, c: PacketCore): Promise<void> {
     packet = p;
@@ -46,6 +50,7 @@ export function useBenchSession() {
     if (nextState === current) return false;
     const base = { coreId: core.id, workOrderId: packet.workOrder.id, updatedAt: nextState.updatedAt, session: serialise(nextState) };
     if (nextState.phase === 'done') {
+      await saving; // earlier saves first, so the final state is the last one written
       const clientId = crypto.randomUUID();
       const record = S.finish(nextState, { clientId, workOrderId: packet.workOrder.id });
       const next: CoreProgress = { ...base, status: statusFor(nextState), completionId: clientId };
@@ -53,8 +58,11 @@ export function useBenchSession() {
       progress.value = next;
     } else {
       const next: CoreProgress = { ...progress.value, ...base, status: statusFor(nextState) };
-      if (failed(await bench.saveProgress(core.id, next))) return false;
       progress.value = next;
+      session.value = nextState;
+      const coreId = core.id;
+      saving = saving.then(async () => failed(await bench.saveProgress(coreId, next)));
+      return true;
     }
     session.value = nextState;
     return true;
