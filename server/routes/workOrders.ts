@@ -83,7 +83,7 @@ export function workOrdersRouter({ db, sealer, mailer, config }: Ctx): Router {
       throw forbidden('This work order is not assigned to you; its packet stays with the assignee.');
     }
     const packet = await buildPacket(db, sealer, id);
-    await audit(db, actorOf(req), 'packet.downloaded', { type: 'work-order', id }, { cores: packet.cores.length, deviceId: req.get('x-device-id') ?? null });
+    await audit(db, actorOf(req), 'packet.downloaded', { type: 'work-order', id }, { cores: packet.cores.length });
     res.json({ packet });
   });
 

@@ -32,6 +32,19 @@ export interface LoadedSystem {
   keys: SystemKey[];
 }
 
+interface KeyRow {
+  id: string;
+  symbol: string;
+  level: KeyLevel;
+  parent_id: string | null;
+  status: KeyStatus;
+  cross_keyed: boolean;
+  notes: string | null;
+}
+
+/** A stored key's row as the API names it, without its bitting. */
+const keyOf = (k: KeyRow): Omit<SystemKey, 'bitting'> => ({ id: k.id, symbol: k.symbol, level: k.level, parentId: k.parent_id, status: k.status, crossKeyed: k.cross_keyed, notes: k.notes });
+
 /** Checks a bitting against the profile; a 400 naming the field when it does not fit. */
 export function checkBitting(profile: Profile, bitting: string, field: string): string {
   const reading = readBitting(profile, bitting);
@@ -49,16 +62,7 @@ export async function loadSystem(db: Knex, sealer: Sealer, systemId: string): Pr
     name: row.name,
     profile,
     control: sealer.open(row.control_enc, controlContext(row.id)),
-    keys: keys.map((k) => ({
-      id: k.id,
-      symbol: k.symbol,
-      level: k.level,
-      parentId: k.parent_id,
-      status: k.status,
-      crossKeyed: k.cross_keyed,
-      notes: k.notes,
-      bitting: sealer.open(k.bitting_enc, keyContext(k.id)),
-    })),
+    keys: keys.map((k) => ({ ...keyOf(k), bitting: sealer.open(k.bitting_enc, keyContext(k.id)) })),
   };
 }
 
@@ -105,17 +109,7 @@ export async function updateSystem(db: Knex, sealer: Sealer, id: string, input: 
 export async function listKeys(db: Knex, sealer: Sealer, systemId: string, reveal: boolean) {
   if (!(await db('key_systems').where({ id: systemId }).first('id'))) throw notFound('That key system');
   const rows = await db('keys').where({ key_system_id: systemId }).orderBy('symbol');
-  return rows.map((k) => ({
-    id: k.id,
-    keySystemId: k.key_system_id,
-    symbol: k.symbol,
-    level: k.level,
-    parentId: k.parent_id,
-    status: k.status,
-    crossKeyed: k.cross_keyed,
-    notes: k.notes,
-    ...(reveal ? { bitting: sealer.open(k.bitting_enc, keyContext(k.id)) } : {}),
-  }));
+  return rows.map((k) => ({ ...keyOf(k), keySystemId: k.key_system_id, ...(reveal ? { bitting: sealer.open(k.bitting_enc, keyContext(k.id)) } : {}) }));
 }
 
 async function checkParent(trx: Knex, systemId: string, parentId: string | null | undefined, selfId?: string): Promise<void> {

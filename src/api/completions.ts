@@ -3,7 +3,8 @@ import { z } from 'zod';
 import { CompletionPage, CompletionRow, type CompletionQuery } from '@shared/schemas/completions';
 import { Attempt } from '@shared/schemas/sync';
 import { request } from './http';
-import { authorizedFetch, errorFrom, toQuery } from './doors';
+import { toQuery } from './doors';
+import { authorizedFetch, errorOf } from './http';
 
 export type CompletionFilter = Partial<CompletionQuery>;
 
@@ -30,7 +31,7 @@ export const getCompletion = async (id: string) => (await request('GET', `/api/c
 export async function exportCompletionsCsv(filter: CompletionFilter): Promise<{ blob: Blob; filename: string }> {
   const { page: _p, pageSize: _s, ...rest } = filter;
   const res = await authorizedFetch(`/api/completions.csv${toQuery({ ...rest })}`, { headers: { Accept: 'text/csv' } });
-  if (!res.ok) throw await errorFrom(res);
+  if (!res.ok) throw await errorOf(res);
   const name = /filename="([^"]+)"/.exec(res.headers.get('Content-Disposition') ?? '')?.[1] ?? 'completion-log.csv';
   return { blob: await res.blob(), filename: name };
 }

@@ -1,14 +1,8 @@
-/**
- * Doors (openings): list, history and the CSV import. This module also holds the two
- * non-JSON transfers the console needs (a multipart upload and a file download), because
- * http.ts only speaks JSON; both send the bearer token the same way request() does.
- */
+/** Doors (openings): list, history and the CSV import (a multipart upload through http.ts's authorizedFetch). */
 import { z } from 'zod';
 import { Door } from '@shared/schemas/records';
 import { CoreState } from '@shared/schemas/records';
-import type { ApiErrorBody } from '@shared/errors';
-import { ApiError, request } from './http';
-import { useSessionStore } from '@/stores/session';
+import { ApiError, authorizedFetch, errorOf, request } from './http';
 
 /** Query string from a filter object; empty values are left out so links stay short. */
 export function toQuery(filter: Record<string, string | number | boolean | null | undefined>): string {
@@ -16,31 +10,6 @@ export function toQuery(filter: Record<string, string | number | boolean | null 
   for (const [k, v] of Object.entries(filter)) if (v !== undefined && v !== null && v !== '') params.set(k, String(v));
   const s = params.toString();
   return s ? `?${s}` : '';
-}
-
-/**
- * fetch with the signed-in user's token for uploads and downloads. http.ts keeps its token
- * source private, so this asks the session store for a fresh access token each time
- * (one refresh per transfer; transfers are rare and user-initiated).
- */
-export async function authorizedFetch(path: string, init: RequestInit = {}): Promise<Response> {
-  const token = await useSessionStore().refreshTokens();
-  if (!token) throw new ApiError('unauthenticated', 'Your sign-in has ended; sign in again.', 401);
-  try {
-    return await fetch(path, { ...init, cache: 'no-store', headers: { ...(init.headers as Record<string, string> | undefined), Authorization: `Bearer ${token}` } });
-  } catch {
-    throw new ApiError('network', 'The server cannot be reached; check the connection. Nothing was lost.', 0);
-  }
-}
-
-export async function errorFrom(res: Response): Promise<ApiError> {
-  try {
-    const body = (await res.json()) as ApiErrorBody;
-    if (body?.error?.code) return new ApiError(body.error.code, body.error.message, res.status, body.error.details ?? []);
-  } catch {
-    // not our JSON shape
-  }
-  return new ApiError('unknown', `The server answered ${res.status} ${res.statusText}.`, res.status);
 }
 
 export const ImportRowError = z.object({ row: z.number(), column: z.string().nullable(), message: z.string() });
@@ -64,7 +33,7 @@ export async function uploadCsv(path: string, file: File, commit: boolean): Prom
     if (parsed.success) return parsed.data;
     throw new ApiError('bad-response', 'The import answer was not understood.', res.status);
   }
-  throw await errorFrom(res);
+  throw await errorOf(res);
 }
 
 export interface DoorFilter {

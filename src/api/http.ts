@@ -38,35 +38,43 @@ interface Options<S extends z.ZodType> {
   signal?: AbortSignal;
 }
 
-async function send(method: string, path: string, body: unknown, token: string | null, signal?: AbortSignal): Promise<Response> {
-  const headers: Record<string, string> = { Accept: 'application/json' };
-  if (body !== undefined) headers['Content-Type'] = 'application/json';
+async function send(path: string, init: RequestInit, token: string | null): Promise<Response> {
+  const headers: Record<string, string> = { ...(init.headers as Record<string, string> | undefined) };
   if (token) headers.Authorization = `Bearer ${token}`;
   try {
-    return await fetch(path, { method, headers, body: body === undefined ? null : JSON.stringify(body), signal: signal ?? null, cache: 'no-store' });
+    return await fetch(path, { ...init, headers, cache: 'no-store' });
   } catch (err) {
     if ((err as Error).name === 'AbortError') throw err;
     throw new ApiError('network', 'The server cannot be reached; check the connection. Nothing was lost.', 0);
   }
 }
 
-async function errorOf(res: Response): Promise<ApiError> {
+/** fetch with the signed-in user's token, refreshed once on a 401: for uploads, downloads and JSON alike. */
+export async function authorizedFetch(path: string, init: RequestInit = {}, auth = true): Promise<Response> {
+  let res = await send(path, init, auth ? (tokens?.accessToken() ?? null) : null);
+  if (res.status === 401 && auth && tokens) {
+    const fresh = await tokens.refresh();
+    if (fresh) res = await send(path, init, fresh);
+  }
+  return res;
+}
+
+/** The server's error shape as an ApiError; anything else (a proxy, the service worker) by its status. */
+export async function errorOf(res: Response): Promise<ApiError> {
   try {
     const body = (await res.json()) as ApiErrorBody;
     if (body?.error?.code) return new ApiError(body.error.code, body.error.message, res.status, body.error.details ?? []);
   } catch {
-    // not our JSON: a proxy or the service worker answered
+    // not our JSON
   }
   return new ApiError(res.status >= 500 ? 'internal' : 'unknown', `The server answered ${res.status} ${res.statusText}.`, res.status);
 }
 
 export async function request<S extends z.ZodType>(method: string, path: string, opts: Options<S> = {}): Promise<z.infer<S>> {
-  const useAuth = opts.auth !== false;
-  let res = await send(method, path, opts.body, useAuth ? (tokens?.accessToken() ?? null) : null, opts.signal);
-  if (res.status === 401 && useAuth && tokens) {
-    const fresh = await tokens.refresh();
-    if (fresh) res = await send(method, path, opts.body, fresh, opts.signal);
-  }
+  const headers: Record<string, string> = { Accept: 'application/json' };
+  if (opts.body !== undefined) headers['Content-Type'] = 'application/json';
+  const init: RequestInit = { method, headers, body: opts.body === undefined ? null : JSON.stringify(opts.body), signal: opts.signal ?? null };
+  const res = await authorizedFetch(path, init, opts.auth !== false);
   if (!res.ok) throw await errorOf(res);
   if (res.status === 204 || !opts.schema) return undefined as z.infer<S>;
   const json: unknown = await res.json();

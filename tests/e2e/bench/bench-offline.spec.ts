@@ -65,9 +65,11 @@ async function passAll(phase: string): Promise<void> {
   await expect(page.getByTestId('key-check')).toBeVisible();
   for (let i = 0; i < 10 && (await page.getByTestId('key-check').isVisible()); i++) {
     await shot(`key-check-${phase}`);
-    const before = `${await page.getByTestId('check-symbol').textContent()}|${await page.getByTestId('key-check').textContent()}`;
+    // read in one go inside the page: the card may go away between two separate reads
+    const card = () => page.evaluate(() => document.querySelector('[data-test="key-check"]')?.textContent ?? 'gone');
+    const before = await card();
     await page.keyboard.press('p');
-    await expect.poll(async () => ((await page.getByTestId('key-check').isVisible()) ? `${await page.getByTestId('check-symbol').textContent()}|${await page.getByTestId('key-check').textContent()}` : 'gone')).not.toBe(before);
+    await expect.poll(card).not.toBe(before);
   }
 }
 
