@@ -27,7 +27,9 @@ export function syncRouter(ctx: Ctx): Router {
       });
     }
     const { response, events } = await landBatch(db, user, input.deviceId, input.records);
-    await db('devices').where({ id: input.deviceId }).update({ last_sync_at: db.fn.now(), last_sync_waiting: response.rejected.length });
+    // What is still on the tablet after this batch: its outbox count less what just landed.
+    const left = input.outbox ? Math.max(0, input.outbox.waiting - response.accepted.length - response.duplicates.length) : response.rejected.length;
+    await db('devices').where({ id: input.deviceId }).update({ last_sync_at: db.fn.now(), last_sync_waiting: left });
     if (response.accepted.length || response.rejected.length) {
       await audit(db, actorOf(req), 'sync.batch', { type: 'device', id: input.deviceId }, { accepted: response.accepted.length, duplicates: response.duplicates.length, rejected: response.rejected.length });
     }

@@ -74,6 +74,8 @@ export const MAX_SYNC_RECORDS = 100;
 /** Records are checked one by one, so one bad record never stops the others. */
 export const SyncRequest = z.strictObject({
   deviceId: Id,
+  /** What the tablet's outbox holds as it sends (these records included), so the office sees what is still out there. */
+  outbox: z.strictObject({ waiting: z.number().int().min(0).max(1_000_000) }).optional(),
   records: z.array(z.unknown()).min(1, { error: 'send at least one record' }).max(MAX_SYNC_RECORDS, { error: `send at most ${MAX_SYNC_RECORDS} records per request` }),
 });
 export type SyncRequest = z.infer<typeof SyncRequest>;

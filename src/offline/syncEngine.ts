@@ -98,11 +98,11 @@ export function createSyncEngine(deps: SyncDeps) {
     return result.saved.length;
   }
 
-  async function sendChunk(deviceId: string, chunk: Entry[], tally: PassResult): Promise<ChunkOutcome> {
+  async function sendChunk(deviceId: string, chunk: Entry[], tally: PassResult, holding = chunk.length): Promise<ChunkOutcome> {
     let res: SyncResponse;
     tally.requests++;
     try {
-      res = await send({ deviceId, records: chunk.map((e) => e.record) });
+      res = await send({ deviceId, records: chunk.map((e) => e.record), outbox: { waiting: holding } });
     } catch (err) {
       const e = err instanceof ApiError ? err : new ApiError('network', 'Sync failed unexpectedly; nothing was lost.', 0);
       if (e.isNetwork || e.status >= 500 || e.status === 408 || e.status === 429 || e.code === 'bad-response') {
@@ -147,8 +147,9 @@ export function createSyncEngine(deps: SyncDeps) {
     const deviceId = await deps.deviceId();
     if (!deviceId) return { ...tally, outcome: 'locked' };
     const entries = await outbox.pending();
+    const flaggedNow = (await outbox.count()).flagged;
     for (let i = 0; i < entries.length; i += BATCH_SIZE) {
-      const outcome = await sendChunk(deviceId, entries.slice(i, i + BATCH_SIZE), tally);
+      const outcome = await sendChunk(deviceId, entries.slice(i, i + BATCH_SIZE), tally, entries.length - i + flaggedNow);
       if (outcome !== 'ok') return { ...tally, outcome };
     }
     return { ...tally, outcome: entries.length ? 'sent' : 'nothing' };

@@ -174,6 +174,17 @@ describe('core states, installs and mail', () => {
     expect(escrow.json.error.code).toBe('device-revoked');
   });
 
+  test('the office sees what a tablet still holds: its outbox count less what landed', async () => {
+    const dev = randomUUID();
+    const records = packet.cores.slice(0, 2).map((c) => completionFor(packet.workOrder.id, c));
+    const res = await h.call('POST', '/api/sync', { token, body: { deviceId: dev, records, outbox: { waiting: 7 } } });
+    expect(res.json.accepted).toHaveLength(2);
+    expect(await h.db('devices').where({ id: dev }).first('last_sync_waiting')).toEqual({ last_sync_waiting: 5 });
+    const bad = await h.call('POST', '/api/sync', { token, body: { deviceId: dev, records, outbox: { waiting: -1 } } });
+    expect(bad.status).toBe(400);
+    expect(bad.json.error.details[0].field).toBe('outbox.waiting');
+  });
+
   test('the escrow key is stable per device and refused to another user', async () => {
     const dev = randomUUID();
     const a = await h.call('POST', '/api/devices/escrow', { token, body: { deviceId: dev, label: 'Bench tablet 2' } });
