@@ -5,7 +5,8 @@
  */
 import { parse as parseCsv } from 'csv-parse/sync';
 import type { Knex } from 'knex';
-import { readBitting } from '../../shared/keying';
+import { auditSystem, readBitting } from '../../shared/keying';
+import { auditInputFor } from './systemAudit';
 import { DoorInput, KeyInput, KeyLevel } from '../../shared/schemas/records';
 import { badRequest } from '../errors';
 import { createDoors } from './doors';
@@ -21,6 +22,8 @@ export interface RowError {
 export interface ImportResult {
   rows: number;
   errors: RowError[];
+  /** Not wrong, but worth a look before committing (for keys: cores a new key would open). */
+  warnings: RowError[];
   preview: Record<string, string | boolean | null>[];
   committed: boolean;
   created: number;
@@ -50,6 +53,26 @@ function readCsv(buffer: Buffer, required: string[], known: string[]): CsvRow[] 
 const yes = (v: string | undefined) => /^(1|y|yes|true|x)$/i.test((v ?? '').trim());
 
 const levelWords: Record<string, KeyLevel> = { ggm: 'ggm', 'great-grand-master': 'ggm', gm: 'gm', 'grand-master': 'gm', master: 'master', m: 'master', change: 'change', cr: 'change', 'change-key': 'change' };
+
+/**
+ * The system audit run with the new keys added: a new key whose every cut is among an
+ * existing core's operating depths would open that core (an openings-count key). Not an
+ * error (cross-keying can be meant), but the administrator sees it before committing.
+ */
+async function incidentalAccess(db: Knex, sealer: Sealer, systemId: string, keys: { symbol: string; bitting: string }[], records: CsvRow[]): Promise<RowError[]> {
+  const { profile, audit } = await auditInputFor(db, sealer, systemId);
+  const fresh = keys.map((k, i) => ({ id: `import:${i}`, symbol: k.symbol, bitting: k.bitting, level: undefined, opens: [] as string[] }));
+  const findings = auditSystem(profile, { ...audit, keys: [...audit.keys, ...fresh.map(({ level: _l, ...k }) => k)] });
+  const out: RowError[] = [];
+  for (const f of findings) {
+    if (f.code !== 'unintended-access') continue;
+    for (const id of f.keyIds ?? []) {
+      const i = id.startsWith('import:') ? Number(id.slice(7)) : -1;
+      if (i >= 0) out.push({ row: records[i]!.__row, column: 'bitting', message: f.message });
+    }
+  }
+  return out;
+}
 
 const KEY_COLUMNS = ['symbol', 'level', 'parent', 'bitting', 'status', 'cross_keyed', 'notes'];
 
@@ -99,10 +122,11 @@ export async function importKeys(db: Knex, sealer: Sealer, systemId: string, fil
   });
   const rank = { ggm: 0, gm: 1, master: 2, change: 3 } as const;
   const preview = parsed.map((k) => ({ symbol: k.symbol, level: k.level, parent: k.parentSymbol, status: k.status, crossKeyed: k.crossKeyed }));
-  if (!commit || errors.length) return { rows: records.length, errors, preview, committed: false, created: 0 };
+  const warnings = errors.length ? [] : await incidentalAccess(db, sealer, systemId, parsed, records);
+  if (!commit || errors.length) return { rows: records.length, errors, warnings, preview, committed: false, created: 0 };
   const ordered = [...parsed].sort((a, b) => rank[a.level] - rank[b.level]);
   const ids = await addKeys(db, sealer, systemId, ordered);
-  return { rows: records.length, errors, preview, committed: true, created: ids.length };
+  return { rows: records.length, errors, warnings, preview, committed: true, created: ids.length };
 }
 
 const DOOR_COLUMNS = ['site', 'building', 'floor', 'room', 'label', 'fire_rated', 'key_system', 'key_symbol', 'notes'];
@@ -142,7 +166,7 @@ export async function importDoors(db: Knex, file: Buffer, commit: boolean): Prom
     parsed.push(result.data);
   });
   const preview = parsed.map((d) => ({ label: d.label, site: d.site, building: d.building, floor: d.floor, room: d.room, fireRated: d.fireRated }));
-  if (!commit || errors.length) return { rows: records.length, errors, preview, committed: false, created: 0 };
+  if (!commit || errors.length) return { rows: records.length, errors, warnings: [], preview, committed: false, created: 0 };
   const ids = await createDoors(db, parsed);
-  return { rows: records.length, errors, preview, committed: true, created: ids.length };
+  return { rows: records.length, errors, warnings: [], preview, committed: true, created: ids.length };
 }

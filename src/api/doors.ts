@@ -17,6 +17,7 @@ export type ImportRowError = z.infer<typeof ImportRowError>;
 export const ImportResult = z.object({
   rows: z.number(),
   errors: z.array(ImportRowError),
+  warnings: z.array(ImportRowError).default([]),
   preview: z.array(z.record(z.string(), z.union([z.string(), z.boolean(), z.null()]))),
   committed: z.boolean(),
   created: z.number(),

@@ -316,6 +316,22 @@ describe('a new key system: keys added, changed, imported', () => {
   });
 });
 
+describe('a bitting list that would open existing cores', () => {
+  test('is previewed with a warning on its row naming the cores (keying primer: incidental keys), and nothing is saved', async () => {
+    // 2428402 keeps master AA's depths in chambers 1-4 and takes cuts the Aster Hall cores accept: brute force over
+    // their operating depths is what the engine's audit does (shared/keying/audit).
+    const before = await countRows(h.db, 'keys');
+    const text = ['symbol,level,parent,bitting', 'AAX1,change,AA,2428402', 'AAX2,change,AA,2428064'].join('\n');
+    const res = await h.call('POST', `/api/key-systems/${demoId}/import`, { token: admin, raw: csvForm(text) });
+    expect(res.status).toBe(200);
+    expect(res.json.errors).toEqual([]);
+    expect(res.json.warnings.length).toBeGreaterThan(0);
+    expect(res.json.warnings[0]).toMatchObject({ row: 2, column: 'bitting' });
+    expect(res.json.warnings[0].message).toMatch(/AAX1 turns \d+ cores? it is not meant to operate: CR-\d+/);
+    expect(await countRows(h.db, 'keys')).toEqual(before);
+  });
+});
+
 describe('POST /api/key-systems/:id/progression: a preview, nothing saved', () => {
   test('change keys by total position progression under master AA: new bittings, same parity, nothing saved (keying primer: TPP)', async () => {
     const aa = demoKeys.find((k) => k.symbol === 'AA')!;
