@@ -1,12 +1,13 @@
 import { Router } from 'express';
 import { z } from 'zod';
 import { InviteRequest, UserUpdate } from '../../shared/schemas/auth';
-import { Id, IsoDate } from '../../shared/schemas/common';
+import { Id, IsoDate, TzOffset } from '../../shared/schemas/common';
 import type { Ctx } from '../context';
 import { actorOf, allow } from '../middleware/auth';
 import { parse } from '../middleware/validate';
 import { audit } from '../services/audit';
 import { mails } from '../services/mail';
+import { whereDays } from '../services/dates';
 import { inviteUser, listUsers, updateUser } from '../services/users';
 
 const AuditQuery = z.strictObject({
@@ -15,6 +16,7 @@ const AuditQuery = z.strictObject({
   targetId: z.string().trim().max(80).optional(),
   from: IsoDate.optional(),
   to: IsoDate.optional(),
+  tz: TzOffset,
   page: z.coerce.number().int().min(1).default(1),
   pageSize: z.coerce.number().int().min(1).max(200).default(50),
 });
@@ -46,8 +48,7 @@ export function usersRouter({ db, mailer, config }: Ctx): Router {
     if (q.action) base.where('action', 'like', `${q.action.replace(/[%_\\]/g, (c) => `\\${c}`)}%`);
     if (q.actorId) base.where('actor_id', q.actorId);
     if (q.targetId) base.where('target_id', q.targetId);
-    if (q.from) base.where('at', '>=', q.from);
-    if (q.to) base.where('at', '<', db.raw('?::date + 1', [q.to]));
+    whereDays(db, base, 'at', q);
     const { total } = ((await base.clone().count({ total: '*' })) as { total: number }[])[0]!;
     const rows = await base
       .orderBy('id', 'desc')

@@ -2,6 +2,7 @@
 import type { Knex } from 'knex';
 import type { CompletionQuery } from '../../shared/schemas/completions';
 import { notFound } from '../errors';
+import { whereDays } from './dates';
 
 const sortColumn: Record<CompletionQuery['sort'], string> = {
   finishedAt: 'cp.finished_at',
@@ -32,8 +33,7 @@ function filtered(db: Knex, q: Knex.QueryBuilder, f: Filter) {
   if (f.doorId) q.where('cp.door_id', f.doorId);
   if (f.coreId) q.where('cp.core_id', f.coreId);
   if (f.result) q.where('cp.result', f.result);
-  if (f.from) q.where('cp.finished_at', '>=', f.from);
-  if (f.to) q.where('cp.finished_at', '<', db.raw(`?::date + 1`, [f.to]));
+  whereDays(db, q, 'cp.finished_at', f);
   return q;
 }
 
@@ -83,7 +83,7 @@ export async function* completionRowsForExport(db: Knex, q: CompletionQuery, pag
 }
 
 export async function getCompletion(db: Knex, id: string) {
-  const row = await base(db, {}).where('cp.id', id).first([...columns, 'cp.attempts', 'cp.notes', 'cp.device_id as deviceId']);
+  const row = await base(db, { tz: 0 }).where('cp.id', id).first([...columns, 'cp.attempts', 'cp.notes', 'cp.device_id as deviceId']);
   if (!row) throw notFound('That completion');
   const install = await db('installs as i').join('doors as d', 'd.id', 'i.door_id').join('users as u', 'u.id', 'i.installed_by').where('i.core_id', row.coreId).orderBy('i.installed_at', 'desc').first('i.id', 'd.label as doorLabel', 'i.installed_at as installedAt', 'u.name as installedBy', 'i.removed_core_tag as removedCoreTag', 'i.notes');
   return { ...isoRow(row), install: install ? { ...install, installedAt: new Date(install.installedAt).toISOString() } : null };

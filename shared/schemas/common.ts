@@ -11,6 +11,9 @@ export const BittingText = z
 export const Text = (max: number, what = 'this field') => z.string().trim().max(max, { error: `${what} has at most ${max} characters` });
 export const Name = (max: number, what: string) => Text(max, what).min(1, { error: `enter ${what}` });
 
+/** The viewer's time zone as Date.getTimezoneOffset() gives it (minutes west of UTC), for whole-day filters. */
+export const TzOffset = z.coerce.number().int().min(-840, { error: 'tz is the time-zone offset in minutes, -840 to 840' }).max(840, { error: 'tz is the time-zone offset in minutes, -840 to 840' }).default(0);
+
 export const PageQuery = z.object({
   page: z.coerce.number().int().min(1, { error: 'page starts at 1' }).default(1),
   pageSize: z.coerce.number().int().min(1).max(200, { error: 'pageSize is at most 200' }).default(25),

@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { Id, IsoDate } from './common';
+import { Id, IsoDate, TzOffset } from './common';
 
 export const completionSorts = ['finishedAt', 'startedAt', 'technician', 'door', 'core', 'result', 'workOrder'] as const;
 
@@ -11,6 +11,7 @@ export const CompletionQuery = z.strictObject({
   result: z.enum(['passed', 'failed']).optional(),
   from: IsoDate.optional(),
   to: IsoDate.optional(),
+  tz: TzOffset,
   sort: z.enum(completionSorts, { error: `sort is one of ${completionSorts.join(', ')}` }).default('finishedAt'),
   order: z.enum(['asc', 'desc']).default('desc'),
   page: z.coerce.number().int().min(1, { error: 'page starts at 1' }).default(1),

@@ -25,4 +25,4 @@ export interface AuditFilter {
   page?: number;
   pageSize?: number;
 }
-export const listAuditEvents = (filter: AuditFilter) => request('GET', `/api/audit-events${toQuery({ ...filter })}`, { schema: AuditPage });
+export const listAuditEvents = (filter: AuditFilter) => request('GET', `/api/audit-events${toQuery({ ...filter, tz: new Date().getTimezoneOffset() })}`, { schema: AuditPage });

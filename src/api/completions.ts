@@ -24,13 +24,14 @@ export const CompletionDetail = CompletionRow.extend({
 });
 export type CompletionDetail = z.infer<typeof CompletionDetail>;
 
-export const listCompletions = (filter: CompletionFilter) => request('GET', `/api/completions${toQuery({ ...filter })}`, { schema: CompletionPage });
+// Whole-day filters are read in this browser's time zone.
+export const listCompletions = (filter: CompletionFilter) => request('GET', `/api/completions${toQuery({ ...filter, tz: new Date().getTimezoneOffset() })}`, { schema: CompletionPage });
 export const getCompletion = async (id: string) => (await request('GET', `/api/completions/${id}`, { schema: z.object({ completion: CompletionDetail }) })).completion;
 
 /** The export needs the Authorization header, so it is fetched and handed over as a Blob (the server audits it). */
 export async function exportCompletionsCsv(filter: CompletionFilter): Promise<{ blob: Blob; filename: string }> {
   const { page: _p, pageSize: _s, ...rest } = filter;
-  const res = await authorizedFetch(`/api/completions.csv${toQuery({ ...rest })}`, { headers: { Accept: 'text/csv' } });
+  const res = await authorizedFetch(`/api/completions.csv${toQuery({ ...rest, tz: new Date().getTimezoneOffset() })}`, { headers: { Accept: 'text/csv' } });
   if (!res.ok) throw await errorOf(res);
   const name = /filename="([^"]+)"/.exec(res.headers.get('Content-Disposition') ?? '')?.[1] ?? 'completion-log.csv';
   return { blob: await res.blob(), filename: name };

@@ -85,6 +85,21 @@ async function page(query: string): Promise<{ rows: Row[]; total: number; page: 
 const all = async (extra = '') => (await page(`?pageSize=200${extra}`)).rows;
 const fieldsOf = (res: { json: { error: { details?: { field?: string }[] } } }) => (res.json.error.details ?? []).map((d) => d.field);
 
+describe('whole-day filters in the viewer\'s time zone (tz = Date.getTimezoneOffset(), ECMA-262)', () => {
+  test('a core finished at 23:30 UTC is "tomorrow" for a viewer at UTC+1 and "today" at UTC', async () => {
+    const row = await h.db('completions').orderBy('finished_at', 'desc').first('id');
+    await h.db('completions').where({ id: row.id }).update({ finished_at: '2026-06-14T23:30:00Z', started_at: '2026-06-14T23:10:00Z' });
+    const ids = async (q: string) => ((await h.call('GET', `/api/completions?${q}`, { token: lead })).json.rows as { id: string }[]).map((r) => r.id);
+    expect(await ids('from=2026-06-14&to=2026-06-14')).toContain(row.id);
+    expect(await ids('from=2026-06-14&to=2026-06-14&tz=-60')).not.toContain(row.id);
+    expect(await ids('from=2026-06-15&to=2026-06-15&tz=-60')).toContain(row.id);
+    expect(await ids('from=2026-06-15&to=2026-06-15')).not.toContain(row.id);
+    const bad = await h.call('GET', '/api/completions?tz=2000', { token: lead });
+    expect(bad.status).toBe(400);
+    expect(bad.json.error.details[0].field).toBe('tz');
+  });
+});
+
 describe('GET /api/completions: filters', () => {
   test('without a filter: the 14 demo completions and the 3 synced here, newest first, 25 a page (the seed; shared/schemas/completions.ts defaults)', async () => {
     const p = await page('');
