@@ -5,6 +5,7 @@ import { spawnSync } from 'node:child_process';
 import { mkdtempSync, rmSync } from 'node:fs';
 import path from 'node:path';
 import { chromium, expect, test, type BrowserContext, type Page } from '@playwright/test';
+import { loadWithKeys as loadWithKeysOn, passAll as passAllOn } from '../support/bench';
 import { ownServer, type OwnServer } from '../support/ownServer';
 
 const PASS = 'brass slate paper teal';
@@ -46,32 +47,8 @@ async function waiting(n: number): Promise<void> {
   await expect(page.getByTestId('outbox-status')).toContainText(`${n} waiting`, { timeout: 20_000 });
 }
 
-/** Presses Next (Space) until the Key check shows, screenshotting each kind of part. */
-async function loadWithKeys(): Promise<number> {
-  let steps = 0;
-  for (; steps < 80; steps++) {
-    if (await page.getByTestId('key-check').isVisible()) return steps;
-    const part = (await page.getByTestId('step-part').textContent())?.toLowerCase() ?? '';
-    const kind = part.includes('bottom') ? 'bottom-pin' : part.includes('master') ? 'master-wafer' : part.includes('build-up') ? 'build-up-wafer' : part.includes('top') ? 'top-pin' : part.includes('level') ? 'level-check' : part.includes('spring') ? 'springs' : part.includes('cap') ? 'caps' : 'other';
-    await shot(kind);
-    await page.keyboard.press('Space');
-    await expect(page.getByTestId('step-part').or(page.getByTestId('key-check'))).toBeVisible();
-  }
-  throw new Error('loading did not reach the key check');
-}
-
-/** Passes every key of the Key check with the P key. */
-async function passAll(phase: string): Promise<void> {
-  await expect(page.getByTestId('key-check')).toBeVisible();
-  for (let i = 0; i < 10 && (await page.getByTestId('key-check').isVisible()); i++) {
-    await shot(`key-check-${phase}`);
-    // read in one go inside the page: the card may go away between two separate reads
-    const card = () => page.evaluate(() => document.querySelector('[data-test="key-check"]')?.textContent ?? 'gone');
-    const before = await card();
-    await page.keyboard.press('p');
-    await expect.poll(card).not.toBe(before);
-  }
-}
+const loadWithKeys = () => loadWithKeysOn(page, shot);
+const passAll = (phase: string) => passAllOn(page, () => shot(`key-check-${phase}`));
 
 test.describe.configure({ mode: 'serial' });
 

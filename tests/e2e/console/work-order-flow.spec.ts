@@ -1,14 +1,13 @@
 // A supervisor plans a work order for three doors and assigns it; the technician's e-mail is
-// captured; one core's completion lands through the sync API (the tablet's outbox protocol)
-// and the supervisor reads it, key checks included, in the Completion log.
-import { randomUUID } from 'node:crypto';
+// captured; the technician (a second browser context: the tablet) builds one core on the
+// Bench and syncs it; the supervisor reads it, key checks included, in the Completion log.
 import { expect, test } from '@playwright/test';
 import type { Packet } from '../../../shared/schemas/packet';
-import type { CompletionRecord } from '../../../shared/schemas/sync';
+import { buildCore } from '../support/bench';
 import { demo, signIn } from '../support/session';
-import { apiGet, apiSignIn, bearer, waitForMail } from './api';
+import { apiGet, apiSignIn, waitForMail } from './api';
 
-test('a supervisor plans and assigns a work order; a synced completion shows in the Completion log', async ({ page }) => {
+test('a supervisor plans and assigns a work order; the technician builds a core on the Bench; the Completion log shows it', async ({ page, browser }) => {
   await signIn(page, demo.supervisor);
   await expect(page).toHaveURL(/\/overview/);
   await page.getByTestId('overview-new-work-order').click();
@@ -38,37 +37,22 @@ test('a supervisor plans and assigns a work order; a synced completion shows in 
   expect(mail.text).toContain('3 core(s)');
   expect(mail.text).not.toMatch(/\b\d{7}\b/); // no bitting in the mail
 
-  // The technician finishes one core. The lead may swap this for the real Bench once it exists.
-  const tech = await apiSignIn(page.request, demo.technician);
-  const { packet } = await apiGet<{ packet: Packet }>(page.request, tech, `/api/work-orders/${workOrderId}/packet`);
-  const core = packet.cores[0]!;
-  const t0 = Date.now() - 20 * 60_000;
-  const at = (min: number) => new Date(t0 + min * 60_000).toISOString();
-  const checks = (phase: 'before-cap' | 'after-cap', from: number) =>
-    core.keyCheck.map((k, i) => ({ phase, role: k.role, symbol: k.symbol, result: 'passed' as const, at: at(from + i * 0.2) }));
-  const record: CompletionRecord = {
-    clientId: randomUUID(),
-    kind: 'completion',
-    coreId: core.id,
-    workOrderId,
-    startedAt: at(0),
-    finishedAt: at(15),
-    result: 'passed',
-    attempts: [
-      {
-        n: 1,
-        startedAt: at(0),
-        finishedAt: at(15),
-        result: 'passed',
-        steps: core.pinning.chambers.map((ch, i) => ({ kind: 'bottom' as const, chamber: ch.chamber, size: ch.bottom, at: at(1 + i * 0.5) })),
-        keyChecks: [...checks('before-cap', 8), ...checks('after-cap', 12)],
-      },
-    ],
-    notes: 'Built in the end-to-end test.',
-  };
-  const sync = await page.request.post('/api/sync', { headers: bearer(tech), data: { deviceId: tech.deviceId, records: [record] } });
-  expect(sync.status()).toBe(200);
-  expect(((await sync.json()) as { accepted: string[] }).accepted).toEqual([record.clientId]);
+  // The technician, in a second browser context (the tablet), keeps the work order and builds one core on the Bench.
+  const tablet = await browser.newContext({ viewport: { width: 1280, height: 800 }, serviceWorkers: 'allow' });
+  const tab = await tablet.newPage();
+  await signIn(tab, demo.technician);
+  await tab.getByTestId(`keep-${number}`).click();
+  await tab.getByTestId(`open-${number}`).click();
+  const first = tab.locator('[data-test^="core-CR-"]:not([data-test$="-status"])').first();
+  const tag = (await first.getAttribute('data-test'))!.replace('core-', '');
+  await first.click();
+  await buildCore(tab);
+  await tab.getByTestId('outbox-status').click();
+  await tab.getByTestId('sync-now').click();
+  await expect(tab.getByTestId('outbox-status')).toContainText('0 waiting', { timeout: 20_000 });
+  await tablet.close();
+  const { packet } = await apiGet<{ packet: Packet }>(page.request, await apiSignIn(page.request, demo.supervisor), `/api/work-orders/${workOrderId}/charts`);
+  const core = packet.cores.find((c) => c.tag === tag)!;
 
   await page.goto(`/completions?workOrderId=${workOrderId}`);
   await expect(page.getByTestId('sync-note')).toContainText('work still on a tablet appears after its next sync');
@@ -81,7 +65,6 @@ test('a supervisor plans and assigns a work order; a synced completion shows in 
   const change = core.keyCheck.find((k) => k.role === 'change')!;
   await expect(panel.getByTestId(`key-check-${change.symbol}-before-cap`)).toContainText('Passed');
   await expect(panel.getByTestId(`key-check-CONTROL-after-cap`)).toContainText('Passed');
-  await expect(panel.getByTestId('completion-notes')).toContainText('end-to-end');
 
   // The CSV export carries the same filter and the bearer token.
   const download = page.waitForEvent('download');
