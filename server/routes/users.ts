@@ -33,14 +33,14 @@ export function usersRouter({ db, mailer, config }: Ctx): Router {
     const { userId, token } = await inviteUser(db, input, req.user!.id);
     await audit(db, actorOf(req), 'user.invited', { type: 'user', id: userId }, { role: input.role });
     await mailer.send({ to: input.email, ...mails.invitation(input.name, `${config.publicUrl}/set-password?token=${token}`, req.user!.name) });
-    res.status(201).json({ user: (await listUsers(db)).find((u) => u.id === userId) });
+    res.status(201).json({ user: (await listUsers(db, userId))[0] });
   });
   r.patch('/users/:id', allow('admin'), async (req, res) => {
     const id = parse(Id, req.params.id, 'The user id');
     const input = parse(UserUpdate, req.body, 'The user');
     await updateUser(db, id, input, req.user!.id);
     await audit(db, actorOf(req), input.active === false ? 'user.deactivated' : input.role ? 'user.role-changed' : 'user.updated', { type: 'user', id }, { ...input });
-    res.json({ user: (await listUsers(db)).find((u) => u.id === id) });
+    res.json({ user: (await listUsers(db, id))[0] });
   });
   r.get('/audit-events', allow('admin'), async (req, res) => {
     const q = parse(AuditQuery, req.query, 'The filter');

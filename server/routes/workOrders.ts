@@ -19,8 +19,7 @@ const ListQuery = z.strictObject({
 export function workOrdersRouter({ db, sealer, mailer, config }: Ctx): Router {
   const r = Router();
 
-  async function notifyAssignee(workOrderId: string, userId: string): Promise<void> {
-    const wo = await getWorkOrder(db, workOrderId);
+  async function notifyAssignee(wo: Awaited<ReturnType<typeof getWorkOrder>>, userId: string): Promise<void> {
     const user = await db('users').where({ id: userId }).first('email');
     if (user) await mailer.send({ to: user.email, ...mails.workOrderAssigned({ number: wo.number, title: wo.title, cores: wo.coreCount, due: wo.dueDate, link: `${config.publicUrl}/bench` }) });
   }
@@ -41,8 +40,9 @@ export function workOrdersRouter({ db, sealer, mailer, config }: Ctx): Router {
     const input = parse(WorkOrderInput, req.body, 'The work order');
     const created = await createWorkOrder(db, sealer, input, req.user!.id);
     await audit(db, actorOf(req), 'work-order.created', { type: 'work-order', id: created.id }, { cores: created.cores, assigneeId: input.assigneeId ?? null });
-    if (input.assigneeId) await notifyAssignee(created.id, input.assigneeId);
-    res.status(201).json({ workOrder: await getWorkOrder(db, created.id) });
+    const workOrder = await getWorkOrder(db, created.id);
+    if (input.assigneeId) await notifyAssignee(workOrder, input.assigneeId);
+    res.status(201).json({ workOrder });
   });
 
   async function readable(id: string, user: { id: string; role: string }) {
@@ -71,8 +71,9 @@ export function workOrdersRouter({ db, sealer, mailer, config }: Ctx): Router {
     const id = parse(Id, req.params.id, 'The work order id');
     const { assignedTo } = await updateWorkOrder(db, id, parse(WorkOrderUpdate, req.body, 'The work order'));
     await audit(db, actorOf(req), 'work-order.updated', { type: 'work-order', id }, { assigneeId: assignedTo });
-    if (assignedTo) await notifyAssignee(id, assignedTo);
-    res.json({ workOrder: await getWorkOrder(db, id) });
+    const workOrder = await getWorkOrder(db, id);
+    if (assignedTo) await notifyAssignee(workOrder, assignedTo);
+    res.json({ workOrder });
   });
 
   r.get('/work-orders/:id/packet', allow('technician', 'supervisor', 'admin'), async (req, res) => {

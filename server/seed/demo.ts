@@ -44,19 +44,15 @@ interface SeedKey {
   bitting: string;
 }
 
-/** Users only: what the API tests start from. */
-export async function seedUsers(db: Knex, withExtra = false): Promise<void> {
-  const hash = await hashPassword(DEMO_PASSWORD);
+/** The demo accounts, all with DEMO_PASSWORD (its hash can be passed in: scrypt is slow on purpose). */
+export async function seedUsers(db: Knex, withExtra = false, hash?: string): Promise<void> {
+  hash ??= await hashPassword(DEMO_PASSWORD);
   const users = withExtra ? [...demoUsers, extraTechnician] : demoUsers;
   await db('users').insert(users.map((u) => ({ ...u, password_hash: hash })));
 }
 
-export async function seedDemo(db: Knex, sealer?: Sealer): Promise<void> {
+export async function seedDemo(db: Knex, sealer: Sealer): Promise<void> {
   if (process.env.NODE_ENV === 'production') throw new Error('The demo seed refuses to run with NODE_ENV=production: its accounts share a published password.');
-  if (!sealer) {
-    await seedUsers(db);
-    return;
-  }
   const profile = builtInProfiles['sfic-7']!;
   await db.transaction(async (trx) => {
     await seedUsers(trx, true);

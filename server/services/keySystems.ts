@@ -66,8 +66,10 @@ export async function loadSystem(db: Knex, sealer: Sealer, systemId: string): Pr
   };
 }
 
-export async function listSystems(db: Knex) {
-  const rows = await db('key_systems as s')
+export async function listSystems(db: Knex, id?: string) {
+  const q = db('key_systems as s');
+  if (id) q.where('s.id', id);
+  const rows = await q
     .select('s.id', 's.name', 's.profile_id as profileId', 's.notes', 's.created_at as createdAt', 's.updated_at as updatedAt')
     .select(db.raw('(select count(*) from keys k where k.key_system_id = s.id)::int as "keyCount"'))
     .select(db.raw('(select count(*) from cores c where c.key_system_id = s.id)::int as "coreCount"'))
@@ -76,7 +78,7 @@ export async function listSystems(db: Knex) {
 }
 
 export async function getSystem(db: Knex, id: string) {
-  const row = (await listSystems(db)).find((s) => s.id === id);
+  const [row] = await listSystems(db, id);
   if (!row) throw notFound('That key system');
   return row;
 }

@@ -14,6 +14,8 @@ import { hashRecord } from './canonical';
 export interface SyncUser {
   id: string;
   role: string;
+  /** Kept on each completion as it was when the work landed. */
+  name: string;
 }
 
 export type SyncEvent = { kind: 'key-check-failed'; completionId: string } | { kind: 'work-order-done'; workOrderId: string };
@@ -108,7 +110,6 @@ export async function landBatch(db: Knex, user: SyncUser, deviceId: string, raw:
   const cores = new Map(
     coreIds.length ? ((await db('cores as c').leftJoin('doors as d', 'd.id', 'c.door_id').whereIn('c.id', coreIds).select('c.id', 'c.tag', 'c.state', 'c.door_id', 'd.label')) as { id: string; tag: string; state: string; door_id: string | null; label: string | null }[]).map((c) => [c.id, c]) : [],
   );
-  const technicianName = (await db('users').where({ id: user.id }).first('name'))?.name ?? '';
   const allowed = coreIds.length ? await allowedPairs(db, user, coreIds) : { pairs: new Set<string>(), cores: new Set<string>() };
   newC = newC.filter(({ index, record: r }) => {
     const core = cores.get(r.coreId);
@@ -145,7 +146,7 @@ export async function landBatch(db: Knex, user: SyncUser, deviceId: string, raw:
             core_id: r.coreId,
             work_order_id: r.workOrderId,
             technician_id: user.id,
-            technician_name: technicianName,
+            technician_name: user.name,
             core_tag: cores.get(r.coreId)!.tag,
             door_id: cores.get(r.coreId)!.door_id,
             door_label: cores.get(r.coreId)!.label,

@@ -9,8 +9,10 @@ import { sha256 } from './tokens';
 
 const INVITE_HOURS = 72;
 
-export async function listUsers(db: Knex) {
-  return db('users as u')
+export async function listUsers(db: Knex, id?: string) {
+  const q = db('users as u');
+  if (id) q.where('u.id', id);
+  return q
     .orderBy('u.email')
     .select('u.id', 'u.email', 'u.name', 'u.role', 'u.active', 'u.created_at as createdAt', db.raw('(u.password_hash is not null) as "hasPassword"'));
 }

@@ -7,7 +7,7 @@ import type { Server } from 'node:http';
 import { createApp } from '../../server/app';
 import { loadConfig, type Config } from '../../server/config';
 import { createDb, type Db } from '../../server/db';
-import { DEMO_PASSWORD, demoUsers, seedDemo } from '../../server/seed/demo';
+import { DEMO_PASSWORD, demoUsers, seedDemo, seedUsers } from '../../server/seed/demo';
 import { hashPassword } from '../../server/services/passwords';
 import { startFakeSmtp, type CapturedMail, type FakeSmtp } from '../../server/dev/fakeSmtp';
 import { createSealer, type Sealer } from '../../server/services/secrets';
@@ -56,7 +56,7 @@ export async function resetDatabase(db: Db, opts: { demo?: Sealer } = {}): Promi
   if (tables.length) await db.raw(`TRUNCATE ${tables.map((t) => `"${t}"`).join(', ')} RESTART IDENTITY CASCADE`);
   if (opts.demo) return seedDemo(db, opts.demo);
   cachedHash ??= await hashPassword(DEMO_PASSWORD);
-  await db('users').insert(demoUsers.map((u) => ({ ...u, password_hash: cachedHash })));
+  await seedUsers(db, false, cachedHash);
 }
 
 export const emailFor = { technician: demoUsers[0].email, supervisor: demoUsers[1].email, admin: demoUsers[2].email } as const;
