@@ -18,8 +18,19 @@ export const keyingIssueCodes = {
   'operating-releases-core': { severity: 'error', meaning: 'An operating key lines up the control shear line in every chamber; it would release the core.' },
   'control-shares-top-master': { severity: 'warning', meaning: 'The control key has the top master’s depth in some chamber.' },
   'parity-broken': { severity: 'warning', meaning: 'Depths in one chamber do not keep one parity under a two-step profile.' },
-  'macs-exceeded': { severity: 'warning', meaning: 'Two neighbouring cuts on one key differ by more than the profile’s maximum adjacent cut.' },
+  'macs-exceeded': { severity: 'error', meaning: 'Two neighbouring cuts on one key differ by more than the profile’s maximum adjacent cut; the key cannot be cut.' },
+  'key-parity': { severity: 'warning', meaning: 'An operating key does not keep the named top master’s parity in some chamber.' },
+  // Placing a key in the hierarchy (checkKeyPlacement): entry, import and progression refuse these.
+  'placement-unknown-master': { severity: 'error', meaning: 'The master a key hangs under is not in the key system.' },
+  'placement-master-constant': { severity: 'error', meaning: 'A key under a master changes a position its master holds constant.' },
+  'placement-parity': { severity: 'error', meaning: 'A key does not keep the top master’s parity in some position.' },
+  'placement-equals-control': { severity: 'error', meaning: 'A key has the control key’s bitting.' },
+  'placement-equals-master': { severity: 'error', meaning: 'A key has its own master’s bitting.' },
+  'placement-equals-sibling': { severity: 'error', meaning: 'A key has the bitting of another key under the same master.' },
+  'placement-equals-key': { severity: 'error', meaning: 'A key has the bitting of another key of the system.' },
   // Generating change keys.
+  'progress-held': { severity: 'error', meaning: 'A chamber to progress is one the master holds constant.' },
+  'progress-constants': { severity: 'error', meaning: 'Rotating constant progression keeps 1 to (progressed chambers − 1) positions at the master’s depth per key.' },
   'progress-chamber': { severity: 'error', meaning: 'A chamber to progress is not a chamber of this profile.' },
   'progress-too-large': { severity: 'error', meaning: 'The progression would list too many keys; set a limit.' },
   'progress-limit': { severity: 'error', meaning: 'The limit must be a whole number, zero or more.' },
@@ -50,7 +61,7 @@ export const auditFindingCodes = {
   'change-keys-too-close': { severity: 'warning', meaning: 'Change keys differ in fewer than two positions.' },
   'control-shares-top-master': { severity: 'warning', meaning: 'The control key has the top master’s depth in some chamber.' },
   'parity-broken': { severity: 'warning', meaning: 'A key does not keep the top master’s parity in some position.' },
-  'macs-exceeded': { severity: 'warning', meaning: 'A key breaks the maximum adjacent cut specification.' },
+  'macs-exceeded': { severity: 'error', meaning: 'A key breaks the maximum adjacent cut specification; it cannot be cut.' },
   'rights-amplification': { severity: 'info', meaning: 'How far one change key and its core expose the top master.' },
 } as const satisfies Record<string, { severity: 'error' | 'warning' | 'info'; meaning: string }>;
 

@@ -113,15 +113,33 @@ describe('pinCore: warnings', () => {
     expect(pinning.issues).toEqual([]);
   });
 
-  test('MACS exceeded by an operating key and by the control key', () => {
+  // Keying primer, MACS: a key that breaks it cannot be cut, so it is an error for that key, never only a warning.
+  test('MACS exceeded by an operating key and by the control key is an error that blocks the chart', () => {
     const macs8: Profile = { ...sfic6, maxAdjacentCut: 8 };
     const pinning = pinCore(macs8, { operating: ['094680', '294680'], control: '513579' });
     expect(pinning.issues).toEqual([
-      { code: 'macs-exceeded', severity: 'warning', chamber: 1, key: 0, message: 'Operating key 1: cuts 0 and 9 in chambers 1 and 2 differ by 9, more than the 8 this profile allows — the key may not cut or work; change one of those cuts.' },
+      { code: 'macs-exceeded', severity: 'error', chamber: 1, key: 0, message: 'Operating key 1: cuts 0 and 9 in chambers 1 and 2 differ by 9, more than the 8 this profile allows — the key cannot be cut; change one of those cuts.' },
     ]);
+    expect(hasErrors(pinning)).toBe(true);
     const control = pinCore(macs8, { operating: ['024680', '224680'], control: '091357' });
     expect(control.issues).toEqual([
-      { code: 'macs-exceeded', severity: 'warning', chamber: 1, message: 'Control key: cuts 0 and 9 in chambers 1 and 2 differ by 9, more than the 8 this profile allows — the key may not cut or work; change one of those cuts.' },
+      { code: 'macs-exceeded', severity: 'error', chamber: 1, message: 'Control key: cuts 0 and 9 in chambers 1 and 2 differ by 9, more than the 8 this profile allows — the key cannot be cut; change one of those cuts.' },
     ]);
+    expect(hasErrors(control)).toBe(true);
+    // A difference of exactly the limit is allowed (the limit is the largest difference cut).
+    expect(pinCore(macs8, { operating: ['084680', '284680'], control: '513579' }).issues).toEqual([]);
+  });
+
+  // Keying primer, "Smallest wafer and parity": every key keeps the top master's parity in each position.
+  test('with a named top master every operating key is checked for its parity, the first one too', () => {
+    // Operating key 1 (the change key) is odd in chamber 2 where the named top master is even; key 2 is fine.
+    const pinning = pinCore(sfic6, { operating: ['054680', '224680'], control: '557913', topMaster: '224680' });
+    expect(pinning.issues.filter((i) => i.code === 'key-parity')).toEqual([
+      { code: 'key-parity', severity: 'warning', chamber: 2, key: 0, message: 'Operating key 1, chamber 2: cut 5 breaks the top master’s parity there; under 2-step progression every key keeps it — recut this key.' },
+    ]);
+    // The same keys without a named top master: only the per-chamber warning (no master to compare with).
+    expect(pinCore(sfic6, { operating: ['054680', '224680'], control: '557913' }).issues.map((i) => i.code)).toEqual(['parity-broken']);
+    // A one-step profile asks no parity (keying primer: parity belongs to two-step progression).
+    expect(pinCore({ ...sfic6, step: 1 }, { operating: ['054680', '224680'], control: '557913', topMaster: '224680' }).issues).toEqual([]);
   });
 });

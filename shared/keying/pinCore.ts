@@ -1,7 +1,7 @@
 import { readBitting } from './bitting';
 import { releasesCore } from './keyOperates';
 import { pinChamber } from './pinChamber';
-import { macsBreak } from './rules';
+import { macsBreak, sameProgression } from './rules';
 import type { ChamberPinning, CoreKeys, CorePinning, PinningIssue, Profile } from './types';
 
 /**
@@ -59,6 +59,7 @@ export function pinCore(profile: Profile, keys: CoreKeys): CorePinning {
   }
 
   checkKeys(profile, operating, control, chambers, issues);
+  if (topReading?.ok) checkParity(profile, operating, topMaster, issues);
   if (controlTurnsPlug) {
     issues.push({
       code: 'control-turns-plug', severity: 'error',
@@ -106,6 +107,26 @@ function checkKeys(
   pushMacs(profile, control, 'Control key', issues);
 }
 
+/**
+ * Against a named top master only: every operating key keeps its parity in every chamber
+ * under two-step progression (keying primer). A warning, since the core can still be
+ * built (with an odd-sized wafer); entry and progression refuse such keys.
+ */
+function checkParity(profile: Profile, operating: number[][], top: number[], issues: PinningIssue[]): void {
+  if (profile.step < 2) return;
+  for (let index = 0; index < operating.length; index++) {
+    const depths = operating[index] as number[];
+    if (firstIndexOf(operating, depths) < index) continue;
+    for (let i = 0; i < profile.chambers; i++) {
+      if (sameProgression(profile, depths[i] as number, top[i] as number)) continue;
+      issues.push({
+        code: 'key-parity', severity: 'warning', chamber: i + 1, key: index,
+        message: `Operating key ${index + 1}, chamber ${i + 1}: cut ${depths[i]} breaks the top master’s parity there; under ${profile.step}-step progression every key keeps it — recut this key.`,
+      });
+    }
+  }
+}
+
 function sameDepths(a: readonly number[], b: readonly number[]): boolean {
   for (let i = 0; i < a.length; i++) if (a[i] !== b[i]) return false;
   return a.length === b.length;
@@ -122,8 +143,8 @@ function pushMacs(profile: Profile, depths: number[], label: string, issues: Pin
   const a = depths[i] as number;
   const b = depths[i + 1] as number;
   issues.push({
-    code: 'macs-exceeded', severity: 'warning', chamber: i + 1, ...(key === undefined ? {} : { key }),
-    message: `${label}: cuts ${a} and ${b} in chambers ${i + 1} and ${i + 2} differ by ${Math.abs(a - b)}, more than the ${profile.maxAdjacentCut} this profile allows — the key may not cut or work; change one of those cuts.`,
+    code: 'macs-exceeded', severity: 'error', chamber: i + 1, ...(key === undefined ? {} : { key }),
+    message: `${label}: cuts ${a} and ${b} in chambers ${i + 1} and ${i + 2} differ by ${Math.abs(a - b)}, more than the ${profile.maxAdjacentCut} this profile allows — the key cannot be cut; change one of those cuts.`,
   });
 }
 
