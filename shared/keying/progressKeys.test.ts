@@ -1,6 +1,7 @@
 import fc from 'fast-check';
 import { describe, expect, test } from 'vitest';
 import { progressKeys } from './progressKeys';
+import type { PlacementSystem } from './placement';
 import { builtInProfiles } from './profiles';
 import { allBittings, text } from './testing/arbitraries';
 import type { Profile } from './types';
@@ -101,5 +102,109 @@ describe('progressKeys: brute force over every 5-chamber bitting', () => {
         expect(progressKeys(profile, { topMaster: text(top), progress })).toEqual(expected);
       },
     ), { numRuns: 25 });
+  });
+});
+
+describe('progressKeys: rotating constant, worked examples of our own (keying primer, "Progression")', () => {
+  test('one constant per key, rotating key to key: the constant chamber cycles 4, 5, 6', () => {
+    const keys = progressKeys(sfic6, { topMaster: '246802', progress: [4, 5, 6], method: 'rotating-constant' });
+    // 3 ways to choose the constant chamber, 4 x 4 depths for the other two: 48 keys.
+    expect(keys).toHaveLength(48);
+    expect(new Set(keys).size).toBe(48);
+    // By hand: chamber 4 (8) takes 0 2 4 6, chamber 5 (0) takes 2 4 6 8, chamber 6 (2) takes 0 4 6 8;
+    // the free chambers count up like an odometer, last chamber fastest.
+    expect(keys.slice(0, 6)).toEqual(['246820', '246000', '246022', '246824', '246004', '246042']);
+    const constantAt = (k: string) => [3, 4, 5].filter((i) => k[i] === '246802'[i]).map((i) => i + 1);
+    expect(keys.slice(0, 6).map(constantAt)).toEqual([[4], [5], [6], [4], [5], [6]]);
+    expect(keys.every((k) => k.startsWith('246') && constantAt(k).length === 1)).toBe(true);
+  });
+
+  test('two constants of four progressed chambers: C(4,2) = 6 patterns of 4 x 4 keys', () => {
+    const keys = progressKeys(sfic6, { topMaster: '246802', progress: [3, 4, 5, 6], method: 'rotating-constant', constants: 2 });
+    expect(keys).toHaveLength(6 * 16);
+    expect(keys.every((k) => [2, 3, 4, 5].filter((i) => k[i] === '246802'[i]).length === 2)).toBe(true);
+  });
+
+  test.each([[0], [3], [1.5]])('constants %s of 3 progressed chambers is refused (progress-constants)', (constants) => {
+    expect(() => progressKeys(sfic6, { topMaster: '246802', progress: [4, 5, 6], method: 'rotating-constant', constants }))
+      .toThrow(expect.objectContaining({ code: 'progress-constants' }));
+  });
+
+  test('limit and the control key apply as for total position progression', () => {
+    const all = progressKeys(sfic6, { topMaster: '246802', progress: [4, 5, 6], method: 'rotating-constant' });
+    expect(progressKeys(sfic6, { topMaster: '246802', progress: [4, 5, 6], method: 'rotating-constant', limit: 5 })).toEqual(all.slice(0, 5));
+    expect(progressKeys(sfic6, { topMaster: '246802', progress: [4, 5, 6], method: 'rotating-constant', control: '246042' })).toEqual(all.filter((k) => k !== '246042'));
+  });
+});
+
+describe('progressKeys inside a system: the hierarchy rules (keying primer, "A key under a master keeps its master’s constant positions")', () => {
+  const system: PlacementSystem = {
+    control: '135791',
+    topMasterId: 'a',
+    keys: [
+      { id: 'a', symbol: 'A', bitting: '246802', parentId: null },
+      { id: 'aa', symbol: 'AA', bitting: '446802', parentId: 'a' },
+      { id: 'aa1', symbol: 'AA1', bitting: '446800', parentId: 'aa' },
+    ],
+  };
+  test('a chamber the master holds constant may not be progressed: progress-held names it', () => {
+    expect(() => progressKeys(sfic6, { topMaster: '446802', progress: [1, 6], placement: { system, parentId: 'aa' } }))
+      .toThrow(expect.objectContaining({ code: 'progress-held', chamber: 1, message: 'Chamber 1: the master holds it constant (progressed at a level above), so keys under it may not progress it; choose other chambers.' }));
+  });
+
+  test('keys already in the system are left out, and so is the control key', () => {
+    const keys = progressKeys(sfic6, { topMaster: '446802', progress: [6], placement: { system, parentId: 'aa' } });
+    expect(keys).toEqual(['446804', '446806', '446808']); // 446800 is AA1
+    const withControl = progressKeys(sfic6, { topMaster: '446802', progress: [6], placement: { system: { ...system, control: '446806' }, parentId: 'aa' } });
+    expect(withControl).toEqual(['446804', '446808']);
+  });
+});
+
+describe('progressKeys: rotating constant against brute force (fast-check; every bitting of a 5-chamber profile)', () => {
+  // Brute force keeps every bitting that equals the top master outside the progressed
+  // chambers, equals it in exactly `constants` of them, differs by a multiple of the step
+  // in the rest, and stays within MACS; the result must be exactly that set, and the
+  // first keys must cycle through different constant chambers.
+  const five: Profile = { ...sfic6, chambers: 5 };
+  test('lists exactly the bittings the rule allows, each once, rotating the constant', () => {
+    fc.assert(fc.property(
+      fc.array(fc.integer({ min: 0, max: 9 }), { minLength: 5, maxLength: 5 }),
+      fc.subarray([1, 2, 3, 4, 5], { minLength: 2, maxLength: 4 }),
+      fc.integer({ min: 0, max: 3 }),
+      fc.integer({ min: 4, max: 9 }),
+      fc.constantFrom(1, 2),
+      (top, progress, extra, maxAdjacentCut, step) => {
+        const constants = 1 + (extra % (progress.length - 1));
+        const profile = { ...five, maxAdjacentCut, step };
+        const expected = new Set<string>();
+        for (const b of allBittings(profile)) {
+          let same = 0;
+          const ok = b.every((d, i) => {
+            if (!progress.includes(i + 1)) return d === top[i];
+            if (d === top[i]) return ++same > 0;
+            return (d - (top[i] as number)) % step === 0;
+          });
+          const macs = b.every((d, i) => i === 0 || Math.abs(d - (b[i - 1] as number)) <= maxAdjacentCut);
+          if (ok && macs && same === constants) expected.add(text(b));
+        }
+        const keys = progressKeys(profile, { topMaster: text(top), progress, method: 'rotating-constant', constants });
+        expect(keys.length).toBe(new Set(keys).size);
+        expect(new Set(keys)).toEqual(expected);
+      },
+    ), { numRuns: 40 });
+  });
+
+  test('without MACS in the way, consecutive keys keep different chambers constant until every choice has had a turn', () => {
+    fc.assert(fc.property(
+      fc.array(fc.integer({ min: 0, max: 9 }), { minLength: 5, maxLength: 5 }),
+      fc.subarray([1, 2, 3, 4, 5], { minLength: 2, maxLength: 5 }),
+      (top, progress) => {
+        const keys = progressKeys(five, { topMaster: text(top), progress, method: 'rotating-constant' });
+        const sorted = [...progress].sort((a, b) => a - b);
+        const constantOf = (k: string) => sorted.filter((c) => k[c - 1] === String(top[c - 1]));
+        // Each of the n chambers takes the constant in turn, in chamber order.
+        expect(keys.slice(0, sorted.length).map(constantOf)).toEqual(sorted.map((c) => [c]));
+      },
+    ), { numRuns: 100 });
   });
 });
