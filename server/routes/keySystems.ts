@@ -1,28 +1,22 @@
 import { Router } from 'express';
 import multer from 'multer';
 import { z } from 'zod';
-import { auditSystem, progressKeys, KeyingError } from '../../shared/keying';
+import { auditSystem, progressKeys, KeyingError, type AuditFinding } from '../../shared/keying';
 import { Id } from '../../shared/schemas/common';
-import { KeyInput, KeySystemInput, KeySystemUpdate, KeyUpdate, ProfileInput } from '../../shared/schemas/records';
+import { KeyInput, KeySystemInput, KeySystemUpdate, KeyUpdate, ProfileInput, ProgressionInput, type HeldKey } from '../../shared/schemas/records';
 import type { Ctx } from '../context';
 import { badRequest } from '../errors';
 import { actorOf, allow } from '../middleware/auth';
 import { parse } from '../middleware/validate';
 import { audit } from '../services/audit';
 import { importKeys } from '../services/csvImport';
-import { addKeys, createSystem, getSystem, listKeys, listSystems, loadSystem, updateKey, updateSystem } from '../services/keySystems';
+import { addKeys, createSystem, getSystem, listKeys, listSystems, loadSystem, placementSystemOf, updateKey, updateSystem } from '../services/keySystems';
 import { createProfile, listProfiles, updateProfile } from '../services/profiles';
 import { auditInputFor } from '../services/systemAudit';
 
 export const upload = multer({ storage: multer.memoryStorage(), limits: { fileSize: 1024 * 1024, files: 1 } });
 const IdParam = z.object({ id: Id });
 const Reveal = z.object({ reveal: z.enum(['0', '1']).optional() });
-const Progression = z.strictObject({
-  progress: z.array(z.number().int().min(1).max(8)).min(1, { error: 'choose at least one chamber to progress' }).max(8),
-  parentId: Id,
-  limit: z.number().int().min(1).max(5000).default(200),
-  symbolPrefix: z.string().trim().regex(/^[A-Z0-9-]{1,20}$/i, { error: 'a symbol prefix is letters, digits or dashes' }).optional(),
-});
 
 export function keySystemsRouter({ db, sealer }: Ctx): Router {
   const r = Router();
@@ -88,34 +82,58 @@ export function keySystemsRouter({ db, sealer }: Ctx): Router {
     res.json({ ok: true });
   });
 
-  /** A preview of change keys by total position progression under a master; nothing is saved. */
+  /**
+   * A preview of change keys under a master, by total position progression or rotating
+   * constant; nothing is saved. Every key passes the engine's hierarchy rules, and the
+   * system audit runs on the keys proposed: one that would raise an audit error (for
+   * example, it would turn cores it is not meant to) is held back and listed with why.
+   */
   r.post('/key-systems/:id/progression', allow('admin'), async (req, res) => {
     const { id } = parse(IdParam, req.params);
-    const input = parse(Progression, req.body, 'The progression');
+    const input = parse(ProgressionInput, req.body, 'The progression');
     const system = await loadSystem(db, sealer, id);
     const parent = system.keys.find((k) => k.id === input.parentId);
     if (!parent) throw badRequest('The master to progress from is not in this key system.', [{ field: 'parentId', message: 'unknown key' }]);
-    const taken = new Set(system.keys.map((k) => k.bitting));
+    if (parent.level === 'change') throw badRequest('A change key has no keys under it; choose a master to progress from.', [{ field: 'parentId', message: 'choose a master key' }]);
     let bittings: string[];
     try {
-      bittings = progressKeys(system.profile, { topMaster: parent.bitting, progress: input.progress, control: system.control, limit: input.limit + taken.size });
+      // Twice the limit, so keys the audit holds back can be replaced.
+      bittings = progressKeys(system.profile, {
+        topMaster: parent.bitting, progress: input.progress, method: input.method, constants: input.constants,
+        limit: Math.min(2 * input.limit, 10_000), placement: { system: placementSystemOf(system), parentId: parent.id },
+      });
     } catch (err) {
-      if (err instanceof KeyingError) throw badRequest(err.message, [{ field: 'progress', message: err.message }]);
+      if (err instanceof KeyingError) throw badRequest(err.message, [{ field: err.code === 'progress-constants' ? 'constants' : 'progress', message: err.message }]);
       throw err;
     }
+    const { profile, audit: current } = await auditInputFor(db, sealer, id);
+    const fresh = bittings.map((bitting, i) => ({ id: `proposed:${i}`, symbol: `(new ${i + 1})`, bitting, level: 'change' as const, opens: [] as string[] }));
+    const reasons = new Map<number, AuditFinding[]>();
+    for (const f of auditSystem(profile, { ...current, keys: [...current.keys, ...fresh] })) {
+      if (f.severity !== 'error') continue;
+      for (const keyId of f.keyIds ?? []) {
+        if (!keyId.startsWith('proposed:')) continue;
+        const i = Number(keyId.slice(9));
+        reasons.set(i, [...(reasons.get(i) ?? []), f]);
+      }
+    }
+    const held: HeldKey[] = [];
+    const clean: string[] = [];
+    bittings.forEach((bitting, i) => {
+      const found = reasons.get(i);
+      if (!found) clean.push(bitting);
+      else if (held.length < input.limit) held.push({ bitting, reasons: found.map((f) => ({ code: f.code, message: f.message.replaceAll(`Key (new ${i + 1})`, 'This key').replaceAll(`(new ${i + 1})`, 'this key') })) });
+    });
     const prefix = (input.symbolPrefix ?? parent.symbol).toUpperCase();
     const used = new Set(system.keys.map((k) => k.symbol));
     let n = 1;
-    const keys = bittings
-      .filter((b) => !taken.has(b))
-      .slice(0, input.limit)
-      .map((bitting) => {
-        while (used.has(`${prefix}${n}`)) n++;
-        const symbol = `${prefix}${n++}`;
-        return { symbol, level: 'change' as const, parentId: parent.id, bitting };
-      });
-    await audit(db, actorOf(req), 'bittings.viewed', { type: 'key-system', id }, { what: 'progression-preview', count: keys.length });
-    res.json({ keys });
+    const keys = clean.slice(0, input.limit).map((bitting) => {
+      while (used.has(`${prefix}${n}`)) n++;
+      const symbol = `${prefix}${n++}`;
+      return { symbol, level: 'change' as const, parentId: parent.id, bitting };
+    });
+    await audit(db, actorOf(req), 'bittings.viewed', { type: 'key-system', id }, { what: 'progression-preview', count: keys.length + held.length });
+    res.json({ keys, held });
   });
 
   r.post('/key-systems/:id/import', allow('admin'), upload.single('file'), async (req, res) => {

@@ -5,12 +5,12 @@
  */
 import { parse as parseCsv } from 'csv-parse/sync';
 import type { Knex } from 'knex';
-import { auditSystem, readBitting } from '../../shared/keying';
+import { auditSystem, placementChecker, readBitting } from '../../shared/keying';
 import { auditInputFor } from './systemAudit';
 import { DoorInput, KeyInput, KeyLevel } from '../../shared/schemas/records';
 import { badRequest } from '../errors';
 import { createDoors } from './doors';
-import { addKeys, loadSystem } from './keySystems';
+import { addKeys, loadSystem, placementSystemOf, type LoadedSystem } from './keySystems';
 import type { Sealer } from './secrets';
 
 export interface RowError {
@@ -74,6 +74,29 @@ async function incidentalAccess(db: Knex, sealer: Sealer, systemId: string, keys
   return out;
 }
 
+/**
+ * The engine's hierarchy rules (checkKeyPlacement) for every row without another error,
+ * against the system with the whole file added: a row may hang under a key of the file.
+ */
+function hierarchyErrors(system: LoadedSystem, rows: (KeyInput & { parentSymbol: string | null })[], rowNumbers: number[], wrong: Set<number>): RowError[] {
+  const idOf = new Map(system.keys.map((k) => [k.symbol.toUpperCase(), k.id]));
+  rows.forEach((k, i) => { if (!idOf.has(k.symbol)) idOf.set(k.symbol, `import:${i}`); });
+  const fresh = rows.map((k, i) => ({
+    id: `import:${i}`, symbol: k.symbol, level: k.level, status: k.status ?? 'active', crossKeyed: false, notes: null,
+    parentId: k.parentSymbol ? (idOf.get(k.parentSymbol) ?? null) : null, bitting: k.bitting.trim(),
+  }));
+  const check = placementChecker(system.profile, placementSystemOf({ control: system.control, keys: [...system.keys, ...fresh] }));
+  const out: RowError[] = [];
+  fresh.forEach((k, i) => {
+    const row = rows[i]!;
+    if (wrong.has(rowNumbers[i]!) || (row.parentSymbol && !idOf.has(row.parentSymbol))) return; // its other problems first
+    for (const p of check({ id: k.id, bitting: k.bitting, parentId: k.parentId })) {
+      out.push({ row: rowNumbers[i]!, column: p.field === 'parentId' ? 'parent' : 'bitting', message: p.message });
+    }
+  });
+  return out;
+}
+
 const KEY_COLUMNS = ['symbol', 'level', 'parent', 'bitting', 'status', 'cross_keyed', 'notes'];
 
 export async function importKeys(db: Knex, sealer: Sealer, systemId: string, file: Buffer, commit: boolean): Promise<ImportResult> {
@@ -88,6 +111,7 @@ export async function importKeys(db: Knex, sealer: Sealer, systemId: string, fil
     if (s && !inFile.has(s)) inFile.set(s, i);
   });
   const parsed: (KeyInput & { parentSymbol: string | null })[] = [];
+  const parsedRows: number[] = [];
   records.forEach((r, i) => {
     const row = r.__row;
     const level = levelWords[(r.level ?? '').trim().toLowerCase()];
@@ -109,7 +133,6 @@ export async function importKeys(db: Knex, sealer: Sealer, systemId: string, fil
     const k = result.data;
     const reading = readBitting(system.profile, k.bitting);
     if (!reading.ok) errors.push({ row, column: 'bitting', message: reading.message });
-    else if (k.bitting === system.control) errors.push({ row, column: 'bitting', message: "this is the control key's bitting; an operating key must differ" });
     const symbol = k.symbol.toUpperCase();
     if (existing.has(symbol)) errors.push({ row, column: 'symbol', message: `${symbol} is in the key system already` });
     if (inFile.get(symbol) !== i) errors.push({ row, column: 'symbol', message: `${symbol} appears more than once in the file (first on row ${records[inFile.get(symbol)!]!.__row})` });
@@ -119,7 +142,10 @@ export async function importKeys(db: Knex, sealer: Sealer, systemId: string, fil
     if (parentLevel === 'change') errors.push({ row, column: 'parent', message: `${parent} is a change key; a key hangs under a master` });
     if (parent && parent === symbol) errors.push({ row, column: 'parent', message: 'a key cannot be its own parent' });
     parsed.push({ ...k, symbol, parentSymbol: parent });
+    parsedRows.push(row);
   });
+  errors.push(...hierarchyErrors(system, parsed, parsedRows, new Set(errors.map((e) => e.row))));
+  errors.sort((a, b) => a.row - b.row);
   const rank = { ggm: 0, gm: 1, master: 2, change: 3 } as const;
   const preview = parsed.map((k) => ({ symbol: k.symbol, level: k.level, parent: k.parentSymbol, status: k.status, crossKeyed: k.crossKeyed }));
   const warnings = errors.length ? [] : await incidentalAccess(db, sealer, systemId, parsed, records);

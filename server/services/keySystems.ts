@@ -4,7 +4,7 @@
  */
 import { randomUUID } from 'node:crypto';
 import type { Knex } from 'knex';
-import { readBitting, type Profile } from '../../shared/keying';
+import { placementChecker, readBitting, type PlacementProblem, type PlacementSystem, type Profile } from '../../shared/keying';
 import type { KeyInput, KeyLevel, KeySystemInput, KeySystemUpdate, KeyStatus, KeyUpdate } from '../../shared/schemas/records';
 import { badRequest, conflict, notFound } from '../errors';
 import type { Sealer } from './secrets';
@@ -50,6 +50,35 @@ export function checkBitting(profile: Profile, bitting: string, field: string): 
   const reading = readBitting(profile, bitting);
   if (!reading.ok) throw badRequest(`${field}: ${reading.message}`, [{ field, message: reading.message }]);
   return bitting.trim();
+}
+
+/**
+ * The system's top master: the first active great-grand master, else grand master, else
+ * master (the audit takes the same one). Every key keeps its parity.
+ */
+export function topMasterOf(keys: readonly SystemKey[]): SystemKey | undefined {
+  const active = keys.filter((k) => k.status !== 'retired');
+  return active.find((k) => k.level === 'ggm') ?? active.find((k) => k.level === 'gm') ?? active.find((k) => k.level === 'master');
+}
+
+/** What checkKeyPlacement needs of a stored system (retired keys too: their bittings are cut). */
+export function placementSystemOf(system: Pick<LoadedSystem, 'control' | 'keys'>): PlacementSystem {
+  const top = topMasterOf(system.keys);
+  return {
+    control: system.control,
+    keys: system.keys.map((k) => ({ id: k.id, symbol: k.symbol, bitting: k.bitting, parentId: k.parentId })),
+    ...(top ? { topMasterId: top.id } : {}),
+  };
+}
+
+/** A 400 naming the field and, in the message, the position and the rule. */
+export function placementRefused(problems: PlacementProblem[], where = '', field?: string): never {
+  const first = problems[0]!;
+  const more = problems.length > 1 ? ` (${problems.length - 1} more problem${problems.length === 2 ? '' : 's'} with this key)` : '';
+  // One detail per field (the first problem for it), so a form shows one message per field.
+  const details = new Map<string, string>();
+  for (const p of problems) if (!details.has(field ?? p.field)) details.set(field ?? p.field, p.message);
+  throw badRequest(`${where}${first.message}${more}`, [...details].map(([f, message]) => ({ field: f, message })));
 }
 
 export async function loadSystem(db: Knex, sealer: Sealer, systemId: string): Promise<LoadedSystem> {
@@ -127,17 +156,22 @@ export async function addKeys(db: Knex, sealer: Sealer, systemId: string, inputs
   const system = await loadSystem(db, sealer, systemId);
   return db.transaction(async (trx) => {
     const bySymbol = new Map(system.keys.map((k) => [k.symbol.toUpperCase(), k.id]));
+    const placed = { control: system.control, keys: [...system.keys] };
     const ids: string[] = [];
     for (const [i, input] of inputs.entries()) {
       const where = inputs.length > 1 ? `row ${i + 1}: ` : '';
-      const bitting = checkBitting(system.profile, input.bitting, inputs.length > 1 ? `${i}.bitting` : 'bitting');
-      if (bitting === system.control) throw badRequest(`${where}this bitting is the control key's; a key that releases cores cannot be an operating key.`, [{ field: 'bitting', message: 'equals the control key' }]);
+      const bittingField = inputs.length > 1 ? `${i}.bitting` : 'bitting';
+      const bitting = checkBitting(system.profile, input.bitting, bittingField);
       const symbol = input.symbol.toUpperCase();
       if (bySymbol.has(symbol)) throw conflict(`${where}the symbol ${symbol} is used already in this key system.`, [{ field: 'symbol', message: 'already used' }]);
       const parentId = input.parentId ?? (input.parentSymbol ? bySymbol.get(input.parentSymbol.toUpperCase()) : null) ?? null;
       if (input.parentSymbol && !parentId) throw badRequest(`${where}no key ${input.parentSymbol} to hang ${symbol} under.`, [{ field: 'parentSymbol', message: 'unknown symbol' }]);
       await checkParent(trx, systemId, parentId);
       const id = randomUUID();
+      // The hierarchy rules, against the system as it stands with the rows before this one.
+      const problems = placementChecker(system.profile, placementSystemOf(placed))({ bitting, parentId });
+      if (problems.length > 0) placementRefused(problems, where, bittingField);
+      placed.keys.push({ id, symbol, level: input.level, parentId, status: input.status ?? 'active', crossKeyed: false, notes: null, bitting });
       await trx('keys').insert({
         id,
         key_system_id: systemId,
@@ -174,9 +208,22 @@ export async function updateKey(db: Knex, sealer: Sealer, systemId: string, keyI
       await checkParent(trx, systemId, input.parentId, keyId);
       patch.parent_id = input.parentId;
     }
+    if (input.bitting !== undefined || input.parentId !== undefined) {
+      const bitting = input.bitting === undefined ? key.bitting : checkBitting(system.profile, input.bitting, 'bitting');
+      const parentId = input.parentId === undefined ? key.parentId : input.parentId;
+      const changed = { ...key, bitting, parentId };
+      const after = { control: system.control, keys: system.keys.map((k) => (k.id === keyId ? changed : k)) };
+      const check = placementChecker(system.profile, placementSystemOf(after));
+      const problems = check({ id: keyId, bitting, parentId });
+      if (problems.length > 0) placementRefused(problems, '', input.bitting === undefined ? 'parentId' : 'bitting');
+      // Its own keys must still keep its cuts where it holds them constant.
+      for (const child of after.keys.filter((k) => k.parentId === keyId)) {
+        const childProblems = check({ id: child.id, bitting: child.bitting, parentId: keyId });
+        if (childProblems.length > 0) placementRefused(childProblems, `Key ${child.symbol} hangs under this key and would break the hierarchy: `, input.bitting === undefined ? 'parentId' : 'bitting');
+      }
+    }
     if (input.bitting !== undefined) {
       const bitting = checkBitting(system.profile, input.bitting, 'bitting');
-      if (bitting === system.control) throw badRequest("This bitting is the control key's.", [{ field: 'bitting', message: 'equals the control key' }]);
       if (await trx('core_keys as ck').join('cores as c', 'c.id', 'ck.core_id').where('ck.key_id', keyId).whereNot('c.state', 'retired').first('c.id')) {
         throw conflict('Cores are pinned for this key: retire them or plan a rekey before changing its bitting.');
       }

@@ -81,6 +81,31 @@ export const KeyInput = z.strictObject({
   notes: Text(500, 'notes').optional(),
 });
 export type KeyInput = z.infer<typeof KeyInput>;
+
+/** A progression preview request (keying primer, "Progression"): nothing is saved. */
+export const ProgressionMethod = z.enum(['total-position', 'rotating-constant'], { error: 'the method is total-position or rotating-constant' });
+export type ProgressionMethod = z.infer<typeof ProgressionMethod>;
+export const progressionMethodLabels: Record<ProgressionMethod, string> = {
+  'total-position': 'Total position progression',
+  'rotating-constant': 'Rotating constant',
+};
+export const ProgressionInput = z.strictObject({
+  progress: z.array(z.number().int().min(1).max(8)).min(1, { error: 'choose at least one chamber to progress' }).max(8),
+  parentId: Id,
+  method: ProgressionMethod.default('total-position'),
+  /** Rotating constant: progressed chambers kept at the master's depth in each key. */
+  constants: z.number().int().min(1, { error: 'keep at least one chamber constant' }).max(7).default(1),
+  limit: z.number().int().min(1).max(5000).default(200),
+  symbolPrefix: z.string().trim().regex(/^[A-Z0-9-]{1,20}$/i, { error: 'a symbol prefix is letters, digits or dashes' }).optional(),
+});
+export type ProgressionInput = z.input<typeof ProgressionInput>;
+export const ProgressedKey = z.object({ symbol: z.string(), level: KeyLevel, parentId: Id, bitting: z.string() });
+export type ProgressedKey = z.infer<typeof ProgressedKey>;
+/** A key the progression made but the system audit refused, with the audit's reasons. */
+export const HeldKey = z.object({ bitting: z.string(), reasons: z.array(z.object({ code: z.string(), message: z.string() })) });
+export type HeldKey = z.infer<typeof HeldKey>;
+export const ProgressionPreview = z.object({ keys: z.array(ProgressedKey), held: z.array(HeldKey) });
+export type ProgressionPreview = z.infer<typeof ProgressionPreview>;
 export const KeyUpdate = z.strictObject({
   symbol: KeySymbol.optional(),
   status: KeyStatus.optional(),

@@ -1,20 +1,13 @@
 /** Key systems and keys. Bittings come only with reveal=1, which the server audits. */
 import { z } from 'zod';
-import { Key, KeyLevel, KeySystem, type KeyInput, type KeyUpdate } from '@shared/schemas/records';
+import { Key, KeySystem, ProgressionPreview, type KeyInput, type KeyUpdate, type ProgressionInput } from '@shared/schemas/records';
 import { auditFindingCodes } from '@shared/keying';
 import { request } from './http';
 import { uploadCsv } from './doors';
 
 const reveal = (yes: boolean) => (yes ? '?reveal=1' : '');
 
-export const ProgressedKey = z.object({ symbol: z.string(), level: KeyLevel, parentId: z.uuid(), bitting: z.string() });
-export type ProgressedKey = z.infer<typeof ProgressedKey>;
-export interface ProgressionInput {
-  parentId: string;
-  progress: number[];
-  limit?: number;
-  symbolPrefix?: string;
-}
+export type { HeldKey, ProgressedKey, ProgressionInput } from '@shared/schemas/records';
 
 const codes = Object.keys(auditFindingCodes) as [keyof typeof auditFindingCodes, ...(keyof typeof auditFindingCodes)[]];
 export const AuditFinding = z.object({
@@ -39,7 +32,7 @@ export const addKeys = async (id: string, keys: KeyInput[]) => (await request('P
 export const addKey = async (id: string, key: KeyInput) => (await request('POST', `/api/key-systems/${id}/keys`, { body: key, schema: z.object({ ids: z.array(z.uuid()) }) })).ids;
 export const updateKey = (id: string, keyId: string, patch: KeyUpdate) => request('PATCH', `/api/key-systems/${id}/keys/${keyId}`, { body: patch, schema: z.object({ ok: z.boolean() }) });
 /** A preview only: nothing is saved. It lists bittings, so the server audits it. */
-export const previewProgression = async (id: string, input: ProgressionInput) =>
-  (await request('POST', `/api/key-systems/${id}/progression`, { body: input, schema: z.object({ keys: z.array(ProgressedKey) }) })).keys;
+export const previewProgression = (id: string, input: ProgressionInput) =>
+  request('POST', `/api/key-systems/${id}/progression`, { body: input, schema: ProgressionPreview });
 export const importKeys = (id: string, file: File, commit: boolean) => uploadCsv(`/api/key-systems/${id}/import`, file, commit);
 export const auditKeySystem = (id: string) => request('GET', `/api/key-systems/${id}/audit`, { schema: SystemAudit });

@@ -3,6 +3,7 @@
 // of ../shared/design/reliability.md.
 import { randomUUID } from 'node:crypto';
 import { afterAll, beforeAll, describe, expect, test } from 'vitest';
+import { checkKeyPlacement, keyOperates, pinCore, builtInProfiles, type Profile } from '../../shared/keying';
 import { countRows, startHarness, type Harness } from './harness';
 
 let h: Harness;
@@ -53,6 +54,19 @@ describe('the demo bittings used by these tests (control case for A10)', () => {
     expect(demoBittings.every((b) => /^\d{7}$/.test(b))).toBe(true);
     expect(demoBittings[0]).toBe(SEED_CONTROL);
     expect(demoKeys.find((k) => k.symbol === 'A')).toMatchObject({ level: 'gm', bitting: SEED_GM });
+  });
+});
+
+describe('the demo seed under the hierarchy rules', () => {
+  test('every demo key passes checkKeyPlacement against the rest of the system (keying primer: a key under a master keeps its constant positions, parity, and equals no other key)', () => {
+    const control = demoBittings[0]!;
+    const system = { control, topMasterId: demoKeys.find((k) => k.symbol === 'A')!.id, keys: demoKeys };
+    const sfic7 = builtInProfiles['sfic-7'] as Profile;
+    for (const k of demoKeys) expect(checkKeyPlacement(sfic7, system, { id: k.id, bitting: k.bitting, parentId: k.parentId }), k.symbol).toEqual([]);
+    // Control case: the same check does refuse a demo change key moved under another master.
+    const aa1 = demoKeys.find((k) => k.symbol === 'AA1')!;
+    const ab = demoKeys.find((k) => k.symbol === 'AB')!;
+    expect(checkKeyPlacement(sfic7, system, { id: aa1.id, bitting: aa1.bitting, parentId: ab.id }).map((p) => p.code)).toContain('placement-master-constant');
   });
 });
 
@@ -316,6 +330,107 @@ describe('a new key system: keys added, changed, imported', () => {
   });
 });
 
+describe('the hierarchy rules on hand entry and import (keying primer: "A key under a master keeps its master’s constant positions")', () => {
+  // A system of our own: top master M (all even), master M1 progressed in chamber 1 under it.
+  const CONTROL = '3571357';
+  let sysId: string;
+  let topId: string;
+  let m1Id: string;
+  const add = (body: object) => h.call('POST', `/api/key-systems/${sysId}/keys`, { token: admin, body });
+
+  beforeAll(async () => {
+    sysId = (await h.call('POST', '/api/key-systems', { token: admin, body: { name: 'Hierarchy Hall (invented)', profileId: 'sfic-7', control: CONTROL } })).json.keySystem.id;
+    topId = (await add({ symbol: 'M', level: 'gm', bitting: '4646464' })).json.ids[0];
+    m1Id = (await add({ symbol: 'M1', level: 'master', parentId: topId, bitting: '2646464' })).json.ids[0];
+    expect((await add({ symbol: 'M1-1', level: 'change', parentId: m1Id, bitting: '2646420' })).status).toBe(201);
+  });
+
+  test.each([
+    ['identical to its master', '2646464', /same as its master M1/, undefined],
+    ['identical to a sibling', '2646420', /same as M1-1, a key under the same master/, undefined],
+    ['changing chamber 1, which its master holds constant', '0646420', /^Chamber 1: master M1 holds this position constant/, 1],
+    ['with an odd cut under the even top master', '2646421', /^Chamber 7: the cut breaks top master M’s parity/, 7],
+    ['cut to the control key', CONTROL, /the control key’s/, undefined],
+  ])('a change key %s is a 400 naming bitting and the rule; nothing written (A7)', async (_name, bitting, message, chamber) => {
+    const before = await countRows(h.db, 'keys', 'audit_events');
+    const res = await add({ symbol: 'M1-9', level: 'change', parentId: m1Id, bitting });
+    expect(res.status).toBe(400);
+    expect(res.json.error.message).toMatch(message);
+    if (chamber) expect(res.json.error.message).toContain(`Chamber ${chamber}`);
+    expect(fieldsOf(res)[0]).toBe('bitting');
+    expect(await countRows(h.db, 'keys', 'audit_events')).toEqual(before);
+  });
+
+  test('a batch is all or nothing: a bad second key leaves the first unwritten, the message names the row (A7)', async () => {
+    const before = await countRows(h.db, 'keys');
+    const res = await h.call('POST', `/api/key-systems/${sysId}/keys`, { token: admin, body: { keys: [
+      { symbol: 'M1-2', level: 'change', parentId: m1Id, bitting: '2646440' },
+      { symbol: 'M1-3', level: 'change', parentId: m1Id, bitting: '2646440' },
+    ] } });
+    expect(res.status).toBe(400);
+    expect(res.json.error.message).toMatch(/^row 2: The bitting is the same as M1-2/);
+    expect(fieldsOf(res)).toEqual(['1.bitting']);
+    expect(await countRows(h.db, 'keys')).toEqual(before);
+  });
+
+  test('changing a master’s bitting so that its key no longer keeps the master’s cuts is refused, naming that key (A7)', async () => {
+    const res = await h.call('PATCH', `/api/key-systems/${sysId}/keys/${m1Id}`, { token: admin, body: { bitting: '6646464' } });
+    expect(res.status).toBe(400);
+    expect(res.json.error.message).toMatch(/^Key M1-1 hangs under this key and would break the hierarchy: Chamber 1:/);
+    expect(fieldsOf(res)).toEqual(['bitting']);
+  });
+
+  test('moving a key under a master whose constant positions it does not keep is refused, naming parentId (A7)', async () => {
+    const m2 = (await add({ symbol: 'M2', level: 'master', parentId: topId, bitting: '4446464' })).json.ids[0];
+    const keys = (await h.call('GET', `/api/key-systems/${sysId}/keys`, { token: admin })).json.keys as { id: string; symbol: string }[];
+    const child = keys.find((k) => k.symbol === 'M1-1')!;
+    const res = await h.call('PATCH', `/api/key-systems/${sysId}/keys/${child.id}`, { token: admin, body: { parentId: m2 } });
+    expect(res.status).toBe(400);
+    expect(res.json.error.message).toMatch(/^Chamber 2: master M2 holds this position constant/);
+    expect(fieldsOf(res)).toContain('parentId');
+    expect((await h.db('keys').where({ id: child.id }).first('parent_id')).parent_id).toBe(m1Id);
+  });
+
+  test('a CSV import with rows that break the hierarchy: 422, each row named with column and rule; nothing added (common practice: all-or-nothing imports)', async () => {
+    const before = await countRows(h.db, 'keys', 'audit_events');
+    const text = [
+      'symbol,level,parent,bitting',
+      'M1-5,change,M1,2646460', // row 2: fine
+      'M1-6,change,M1,2646464', // row 3: its master's bitting
+      'M1-7,change,M1,6646460', // row 4: chamber 1 held by M1
+      'M3,master,M,4664464', // row 5: fine (a new master under M)
+      'M3-1,change,M3,4664461', // row 6: odd cut in chamber 7, under a master from the same file
+      'M1-8,change,M1,2646460', // row 7: same as row 2
+    ].join('\n');
+    const res = await h.call('POST', `/api/key-systems/${sysId}/import?commit=1`, { token: admin, raw: csvForm(text) });
+    expect(res.status).toBe(422);
+    expect(res.json.committed).toBe(false);
+    expect(res.json.errors.map((e: { row: number; column: string }) => [e.row, e.column])).toEqual([[2, 'bitting'], [3, 'bitting'], [4, 'bitting'], [6, 'bitting'], [7, 'bitting']]);
+    const byRow = new Map((res.json.errors as { row: number; message: string }[]).map((e) => [e.row, e.message]));
+    expect(byRow.get(2)).toMatch(/same as M1-8, a key under the same master/);
+    expect(byRow.get(3)).toMatch(/same as its master M1/);
+    expect(byRow.get(4)).toMatch(/^Chamber 1: master M1 holds this position constant/);
+    expect(byRow.get(6)).toMatch(/^Chamber 7: the cut breaks top master M’s parity/);
+    expect(await countRows(h.db, 'keys', 'audit_events')).toEqual(before);
+  });
+});
+
+describe('MACS is an error for the key that breaks it (keying primer, MACS)', () => {
+  test('hand entry and import refuse a key that breaks the profile’s maximum adjacent cut, naming the chambers (A7)', async () => {
+    const profile = { ...(builtInProfiles['sfic-7'] as Profile), id: 'test-seven-macs4', label: 'Test 7-pin, MACS 4', maxAdjacentCut: 4 };
+    expect((await h.call('POST', '/api/profiles', { token: admin, body: profile })).status).toBe(201);
+    const sysId = (await h.call('POST', '/api/key-systems', { token: admin, body: { name: 'Close Cuts Lab (invented)', profileId: profile.id, control: '5353535' } })).json.keySystem.id;
+    const hand = await h.call('POST', `/api/key-systems/${sysId}/keys`, { token: admin, body: { symbol: 'A', level: 'gm', bitting: '2828282' } });
+    expect(hand.status).toBe(400);
+    expect(hand.json.error.message).toMatch(/^Chambers 1 and 2: cuts 2 and 8 differ by 6, more than the maximum adjacent cut of 4; the key cannot be cut/);
+    const csv = await h.call('POST', `/api/key-systems/${sysId}/import`, { token: admin, raw: csvForm(['symbol,level,parent,bitting', 'A,gm,,2424242', 'A1,change,A,2424282'].join('\n')) });
+    expect(csv.status).toBe(422);
+    expect(csv.json.errors).toEqual([{ row: 3, column: 'bitting', message: expect.stringMatching(/^Chambers 5 and 6: cuts 2 and 8 differ by 6/) }]);
+    // 4 apart is within the limit (MACS is the largest difference allowed).
+    expect((await h.call('POST', `/api/key-systems/${sysId}/keys`, { token: admin, body: { symbol: 'A', level: 'gm', bitting: '2626262' } })).status).toBe(201);
+  });
+});
+
 describe('a bitting list that would open existing cores', () => {
   test('is previewed with a warning on its row naming the cores (keying primer: incidental keys), and nothing is saved', async () => {
     // 2428402 keeps master AA's depths in chambers 1-4 and takes cuts the Aster Hall cores accept: brute force over
@@ -358,6 +473,57 @@ describe('POST /api/key-systems/:id/progression: a preview, nothing saved', () =
     expect(new Set(keys.map((k) => k.bitting)).size).toBe(10);
     expect(new Set(keys.map((k) => k.symbol)).size).toBe(10);
     expect(await countRows(h.db, 'keys')).toEqual(before);
+  });
+
+  test('rotating constant under AA: each key keeps exactly one of chambers 5-7 at the master’s depth, and which one rotates (keying primer: rotating constant)', async () => {
+    const aa = demoKeys.find((k) => k.symbol === 'AA')!;
+    const res = await h.call('POST', `/api/key-systems/${demoId}/progression`, { token: admin, body: { progress: [5, 6, 7], parentId: aa.id, method: 'rotating-constant', limit: 12 } });
+    expect(res.status).toBe(200);
+    const keys = res.json.keys as { bitting: string }[];
+    expect(keys.length).toBeGreaterThan(0);
+    const constantAt = keys.map((k) => [4, 5, 6].filter((c) => k.bitting[c] === aa.bitting[c]));
+    for (const [i, k] of keys.entries()) {
+      expect(k.bitting.slice(0, 4)).toBe(aa.bitting.slice(0, 4));
+      expect(constantAt[i]).toHaveLength(1);
+      expect(demoBittings).not.toContain(k.bitting);
+    }
+    expect(new Set(constantAt.map((c) => c[0])).size).toBe(3);
+  });
+
+  test('the preview runs the system audit on its keys: a key that would turn existing cores is held back with the audit’s reason, and no saved key turns a core it is not meant to (brute force with keyOperates)', async () => {
+    const aa = demoKeys.find((k) => k.symbol === 'AA')!;
+    // Rotating constant keeps one of chambers 5-7 at AA's depth, so some keys match an Aster Hall core's change key elsewhere.
+    const res = await h.call('POST', `/api/key-systems/${demoId}/progression`, { token: admin, body: { progress: [5, 6, 7], parentId: aa.id, method: 'rotating-constant', limit: 500 } });
+    expect(res.status).toBe(200);
+    const held = res.json.held as { bitting: string; reasons: { code: string; message: string }[] }[];
+    expect(held.length).toBeGreaterThan(0);
+    for (const k of held) {
+      expect(k.reasons.map((r) => r.code)).toContain('unintended-access');
+      expect(k.reasons[0]!.message).toMatch(/^This key turns \d+ cores? it is not meant to operate/);
+    }
+    // Brute force: pin every live core of the system with the engine and try each proposed key in it.
+    const sfic7 = builtInProfiles['sfic-7'] as Profile;
+    const links = await h.db('core_keys as ck').join('cores as c', 'c.id', 'ck.core_id').where('c.key_system_id', demoId).whereNot('c.state', 'retired').select('ck.core_id', 'ck.key_id');
+    const byCore = new Map<string, string[]>();
+    for (const l of links) byCore.set(l.core_id, [...(byCore.get(l.core_id) ?? []), demoKeys.find((k) => k.id === l.key_id)!.bitting]);
+    const pinnings = [...byCore.values()].map((operating) => pinCore(sfic7, { operating, control: SEED_CONTROL }));
+    const turnsAny = (b: string) => pinnings.some((p) => keyOperates(p, sfic7, b).plug);
+    for (const k of res.json.keys as { bitting: string }[]) expect(turnsAny(k.bitting), k.bitting).toBe(false);
+    for (const k of held) expect(turnsAny(k.bitting), k.bitting).toBe(true);
+  });
+
+  test('progressing a chamber the master holds constant is a 400 naming progress and the chamber; a bad method or constant count names its field (A7)', async () => {
+    const aa = demoKeys.find((k) => k.symbol === 'AA')!;
+    const held = await h.call('POST', `/api/key-systems/${demoId}/progression`, { token: admin, body: { progress: [2, 6], parentId: aa.id } });
+    expect(held.status).toBe(400);
+    expect(fieldsOf(held)).toEqual(['progress']);
+    expect(held.json.error.message).toMatch(/^Chamber 2: the master holds it constant/);
+    const method = await h.call('POST', `/api/key-systems/${demoId}/progression`, { token: admin, body: { progress: [6], parentId: aa.id, method: 'sideways' } });
+    expect(method.status).toBe(400);
+    expect(fieldsOf(method)).toEqual(['method']);
+    const constants = await h.call('POST', `/api/key-systems/${demoId}/progression`, { token: admin, body: { progress: [6, 7], parentId: aa.id, method: 'rotating-constant', constants: 2 } });
+    expect(constants.status).toBe(400);
+    expect(fieldsOf(constants)).toEqual(['constants']);
   });
 
   test('bad input names the field: no chamber, a chamber past the core, an unknown parent (A7)', async () => {
