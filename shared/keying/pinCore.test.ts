@@ -143,3 +143,28 @@ describe('pinCore: warnings', () => {
     expect(pinCore({ ...sfic6, step: 1 }, { operating: ['054680', '224680'], control: '557913', topMaster: '224680' }).issues).toEqual([]);
   });
 });
+
+describe('pinCore on the smallest and largest cores (5 and 8 chambers)', () => {
+  // The primer's formulas per chamber: bottom = change depth, master wafer = master - change,
+  // build-up = control + 10 - master, top = 13 - control (stack 23, sleeve 10; common practice).
+  test.each([5, 8])('%i chambers: every chamber follows the formulas, the last one too', (chambers) => {
+    const profile: Profile = { ...sfic6, chambers };
+    const change = [0, 2, 4, 6, 8, 0, 2, 4].slice(0, chambers);
+    const master = [4, 6, 8, 8, 8, 2, 4, 6].slice(0, chambers);
+    const control = [1, 3, 5, 7, 9, 1, 3, 5].slice(0, chambers);
+    const pinning = pinCore(profile, { operating: [change.join(''), master.join('')], control: control.join('') });
+    expect(pinning.issues.filter((i) => i.severity === 'error')).toEqual([]);
+    expect(pinning.chambers).toHaveLength(chambers);
+    pinning.chambers.forEach((ch, i) => {
+      const c = control[i]!;
+      expect(ch.chamber).toBe(i + 1);
+      expect(ch.bottom).toBe(change[i]);
+      expect(ch.masters).toEqual(master[i] === change[i] ? [] : [master[i]! - change[i]!]);
+      expect(ch.buildUp.reduce((a, b) => a + b, 0)).toBe(c + 10 - master[i]!);
+      expect(ch.top).toBe(13 - c);
+      expect(ch.total).toBe(23);
+    });
+    expect(pinning.openingsCount).toBe(2 ** master.filter((m, i) => m !== change[i]).length);
+  });
+});
+

@@ -45,6 +45,8 @@ describe('built-in profiles', () => {
 describe('validateProfile', () => {
   test.each<[string, Partial<Profile>, string, string]>([
     ['too few chambers', { chambers: 4 }, 'profile-chambers', 'Chambers is 4; a core has 5 to 8 chambers.'],
+    ['too many chambers', { chambers: 9 }, 'profile-chambers', 'Chambers is 9; a core has 5 to 8 chambers.'],
+    ['a fraction of a chamber', { chambers: 6.5 }, 'profile-chambers', 'Chambers is 6.5; a core has 5 to 8 chambers.'],
     ['depths reversed', { minDepth: 5, maxDepth: 2 }, 'profile-depths', 'Depths 5..2: bittings are one digit per chamber, so depths lie within 0..9, shallowest first.'],
     ['sleeve too thin', { sleeveUnits: 9 }, 'profile-stack', 'Sleeve of 9 units: it must be more than the depth span (9) so the control shear line sits above every operating depth.'],
     ['stack too short', { stackUnits: 19 }, 'profile-stack', 'Stack of 19 units: with depth 9 and a 10-unit sleeve it must be at least 20 to leave room for a top pin.'],
@@ -56,6 +58,11 @@ describe('validateProfile', () => {
   ])('%s', (_, change, code, message) => {
     const problems = validateProfile({ ...sfic7, ...change });
     expect(problems).toEqual([expect.objectContaining({ code, message })]);
+  });
+
+  // The profile type says 5..8 chambers (6 and 7 usual; common practice): both ends are accepted.
+  test.each([5, 8])('%i chambers is accepted', (chambers) => {
+    expect(validateProfile({ ...sfic7, chambers })).toEqual([]);
   });
 
   test('every profile code has a meaning for the UI', () => {

@@ -4,7 +4,7 @@ import { pinCore } from './pinCore';
 import { builtInProfiles } from './profiles';
 import { keyedCore, text, usualProfile } from './testing/arbitraries';
 import { partKinds, trayFor, type SizeCount } from './tray';
-import type { Profile } from './types';
+import type { CorePinning, Profile } from './types';
 
 const sfic6 = builtInProfiles['sfic-6'] as Profile;
 const count = (list: SizeCount[]): number => list.reduce((n, s) => n + s.count, 0);
@@ -49,20 +49,47 @@ describe('trayFor: worked example of our own', () => {
   });
 });
 
+describe('trayFor: warnings do not keep a core off the tray (keying primer: only errors block a chart)', () => {
+  test('a core whose chart has only warnings is counted, not skipped', () => {
+    // Control 4 shares the master's depth 4 in chamber 1: a warning, the core is still built.
+    const warned = pinCore(sfic6, { operating: ['222222', '466666'], control: '435791' });
+    expect(warned.issues.map((i) => i.severity)).toEqual(['warning']);
+    const tray = trayFor(sfic6, [warned]);
+    expect(tray.cores).toBe(1);
+    expect(tray.skipped).toEqual([]);
+    expect(count(tray.totals.top)).toBe(6);
+  });
+});
+
 describe('trayFor properties', () => {
-  test('every part of every good chart is on the tray once', () => {
+  // Oracle independent of the tray: a chart is usable when no issue is an error and every
+  // chamber is there; its parts are counted straight off the chart, chamber by chamber.
+  const usable = (p: CorePinning, profile: Profile) => p.chambers.length === profile.chambers && p.issues.every((i) => i.severity !== 'error');
+
+  test('every part of every usable chart is on the tray once, and only those charts (fast-check)', () => {
     fc.assert(fc.property(fc.array(keyedCore(usualProfile), { minLength: 1, maxLength: 8 }), (cores) => {
       const profile = cores[0]!.profile;
       const same = cores.filter((c) => c.profile.chambers === profile.chambers);
       const pinnings = same.map((c) => pinCore(profile, { operating: c.operating.map(text), control: text(c.control) }));
       const tray = trayFor(profile, pinnings);
-      const good = pinnings.filter((_, i) => !tray.skipped.includes(i));
+      const good = pinnings.filter((p) => usable(p, profile));
       expect(tray.cores).toBe(good.length);
-      const parts = good.flatMap((p) => p.chambers);
-      expect(count(tray.totals.bottom)).toBe(parts.length);
-      expect(count(tray.totals.top)).toBe(parts.length);
-      expect(count(tray.totals.master)).toBe(parts.reduce((n, c) => n + c.masters.length, 0));
-      expect(count(tray.totals.buildUp)).toBe(parts.reduce((n, c) => n + c.buildUp.length, 0));
+      expect(tray.skipped).toEqual(pinnings.flatMap((p, i) => (usable(p, profile) ? [] : [i])));
+      // Expected counts per chamber and kind, tallied by hand from the charts.
+      for (let c = 1; c <= profile.chambers; c++) {
+        const parts = good.map((p) => p.chambers[c - 1]!);
+        const tally = (sizes: number[]) => {
+          const m = new Map<number, number>();
+          for (const s of sizes) m.set(s, (m.get(s) ?? 0) + 1);
+          return [...m].sort((a, b) => a[0] - b[0]).map(([size, n]) => ({ size, count: n }));
+        };
+        const row = tray.perChamber[c - 1]!;
+        expect(row.chamber).toBe(c);
+        expect(row.bottom).toEqual(tally(parts.map((p) => p.bottom)));
+        expect(row.master).toEqual(tally(parts.flatMap((p) => p.masters)));
+        expect(row.buildUp).toEqual(tally(parts.flatMap((p) => p.buildUp)));
+        expect(row.top).toEqual(tally(parts.map((p) => p.top)));
+      }
       for (const kind of partKinds) {
         expect(tray.perChamber.reduce((n, ch) => n + count(ch[kind]), 0)).toBe(count(tray.totals[kind]));
       }
