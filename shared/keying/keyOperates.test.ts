@@ -2,6 +2,7 @@ import { describe, expect, test } from 'vitest';
 import { keyOperates } from './keyOperates';
 import { pinCore } from './pinCore';
 import { builtInProfiles } from './profiles';
+import { smallKit } from './testing/arbitraries';
 import type { Profile } from './types';
 
 const sfic7 = builtInProfiles['sfic-7'] as Profile;
@@ -35,10 +36,11 @@ describe('keyOperates', () => {
   });
 
   test('a two-wafer seam is a break like any other: it can line up the control line', () => {
-    // All 0s under control 2s: build-ups 10 + 2, seam at 10 = 0 + sleeve.
-    const seamed = pinCore(sfic7, { operating: ['0000000'], control: '2222222' });
-    expect(keyOperates(seamed, sfic7, '0000000')).toEqual({ plug: true, control: true });
+    // A kit of wafers 2..10. All 0s under control 2s: build-ups 10 + 2, seam at 10 = 0 + sleeve.
+    const kit7 = smallKit(sfic7);
+    const seamed = pinCore(kit7, { operating: ['0000000'], control: '2222222' });
+    expect(keyOperates(seamed, kit7, '0000000')).toEqual({ plug: true, control: true });
     // ...but never the operating line: no depth 0..9 reaches a seam at 10.
-    expect(keyOperates(seamed, sfic7, '9999999').plug).toBe(false);
+    expect(keyOperates(seamed, kit7, '9999999').plug).toBe(false);
   });
 });

@@ -1,5 +1,5 @@
-import { isStocked, splitBuildUp } from './stock';
-import type { ChamberPinning, PinningIssue, Profile } from './types';
+import { hasBottom, hasTop, hasWafer, splitBuildUp, type StockTable } from './stock';
+import type { ChamberPinning, PinningIssue } from './types';
 
 /**
  * One chamber's stack from its operating depths and the control depth, with the
@@ -9,15 +9,16 @@ import type { ChamberPinning, PinningIssue, Profile } from './types';
  * Negative parts are shown as 0 and reported, so the chart never silently lies.
  */
 export function pinChamber(
-  profile: Profile,
+  stock: StockTable,
   chamber: number,
   depths: number[],
   control: number,
   issues: PinningIssue[],
 ): ChamberPinning {
+  const { profile } = stock;
   const bottom = depths[0] as number;
   const deepest = depths[depths.length - 1] as number;
-  if (!isStocked(profile.bottomPins, bottom)) {
+  if (!hasBottom(stock, bottom)) {
     issues.push({
       code: 'size-not-stocked', severity: 'error', chamber,
       message: `Chamber ${chamber}: no bottom pin of size ${bottom} is stocked — add it to the kit, or change the shallowest cut in chamber ${chamber}.`,
@@ -37,7 +38,7 @@ export function pinChamber(
         code: 'wafer-too-thin', severity: 'error', chamber,
         message: `Chamber ${chamber}: depths ${lower} and ${upper} need a ${m}-unit master wafer, thinner than the ${profile.minWaferUnits}-unit minimum — change one key’s cut in chamber ${chamber} so the depths differ by ${profile.minWaferUnits} or more.`,
       });
-    } else if (!isStocked(profile.wafers, m)) {
+    } else if (!hasWafer(stock, m)) {
       // Two stacked master wafers would add a break, hence an extra depth that turns the plug.
       issues.push({
         code: 'size-not-stocked', severity: 'error', chamber,
@@ -61,7 +62,7 @@ export function pinChamber(
     });
     buildUpUnits = 0;
   }
-  const buildUp = pickBuildUp(profile, chamber, buildUpUnits, depths, control, issues);
+  const buildUp = pickBuildUp(stock, chamber, buildUpUnits, depths, control, issues);
 
   let top = profile.stackUnits - controlLine;
   if (top < 0) {
@@ -70,7 +71,7 @@ export function pinChamber(
       message: `Chamber ${chamber}: control ${control} + sleeve ${profile.sleeveUnits} is taller than the ${profile.stackUnits}-unit stack, leaving no room for a top pin — choose a shallower control cut in chamber ${chamber}.`,
     });
     top = 0;
-  } else if (!isStocked(profile.topPins, top)) {
+  } else if (!hasTop(stock, top)) {
     issues.push({
       code: 'size-not-stocked', severity: 'error', chamber,
       message: `Chamber ${chamber}: no top pin of size ${top} is stocked (stack ${profile.stackUnits} − control ${control} − sleeve ${profile.sleeveUnits}) — add it to the kit, or choose another control cut in chamber ${chamber}.`,
@@ -86,13 +87,14 @@ export function pinChamber(
 }
 
 function pickBuildUp(
-  profile: Profile,
+  stock: StockTable,
   chamber: number,
   units: number,
   depths: number[],
   control: number,
   issues: PinningIssue[],
 ): number[] {
+  const { profile } = stock;
   if (units === 0) return [];
   const deepest = depths[depths.length - 1] as number;
   if (units < profile.minWaferUnits) {
@@ -102,8 +104,8 @@ function pickBuildUp(
     });
     return [units];
   }
-  if (isStocked(profile.wafers, units)) return [units];
-  const pair = splitBuildUp(profile, units, depths);
+  if (hasWafer(stock, units)) return [units];
+  const pair = splitBuildUp(stock, units, depths);
   if (pair) return pair;
   const largest = Math.max(...profile.wafers);
   issues.push({

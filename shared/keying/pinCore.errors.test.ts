@@ -3,10 +3,13 @@ import { keyingIssueCodes } from './codes';
 import { hasErrors } from './errors';
 import { pinCore } from './pinCore';
 import { builtInProfiles } from './profiles';
+import { smallKit } from './testing/arbitraries';
 import type { CoreKeys, Profile } from './types';
 
 // Every error pinCore can report, each with its message: the cases are our own.
 const sfic6 = builtInProfiles['sfic-6'] as Profile;
+/** A shop kit of wafers 2..10, where build-ups over 10 are two wafers. */
+const kit6 = smallKit(sfic6);
 const range = (a: number, b: number): number[] => Array.from({ length: b - a + 1 }, (_, i) => a + i);
 
 function issue(profile: Profile, keys: CoreKeys, code: string) {
@@ -85,9 +88,9 @@ describe('pinCore: charts that cannot be built', () => {
   });
 
   test('size-not-stocked: build-up that two stocked wafers cannot make safely', () => {
-    // Depth 0 with control 1: 11 units. 10 + 1 needs a one-step wafer; 9 + 2 puts the seam
-    // at depth 9, where a key cut 9 would turn the plug.
-    const { found } = issue(sfic6, { operating: ['024680', '224680'], control: '357911' }, 'size-not-stocked');
+    // Kit of wafers 2..10. Depth 0 with control 1: 11 units. 10 + 1 needs a one-step wafer;
+    // 9 + 2 puts the seam at depth 9, where a key cut 9 would turn the plug.
+    const { found } = issue(kit6, { operating: ['024680', '224680'], control: '357911' }, 'size-not-stocked');
     expect(found).toEqual({
       code: 'size-not-stocked', severity: 'error', chamber: 6,
       message: 'Chamber 6: a build-up of 11 units cannot be made from stocked wafers (largest 10; two wafers must be stocked sizes with their seam above depth 9) — choose a control cut closer to the deepest operating cut (0) in chamber 6, or stock a wafer of 11 units.',
@@ -136,9 +139,9 @@ describe('pinCore: control selectivity', () => {
   test('operating-releases-core: two-wafer seams at the key’s cuts in every chamber', () => {
     // One key of all 0s, control all 2s: every build-up is 12 = 10 + 2, the seam at 10
     // is the control line for depth 0, so the operating key releases the core.
-    const { pinning, found } = issue(sfic6, { operating: ['000000'], control: '222222' }, 'operating-releases-core');
+    const { pinning, found } = issue(kit6, { operating: ['000000'], control: '222222' }, 'operating-releases-core');
     expect(pinning.chambers.map((c) => c.buildUp)).toEqual(Array(6).fill([10, 2]));
-    expect(found?.message).toBe('Operating key 1 lines up the control shear line in every chamber (the seams of its two-wafer build-ups sit at its cuts), so it would release the core — choose a control key that, in at least one chamber where it differs from this key, is no deeper than that chamber’s deepest operating cut (one build-up wafer there leaves no seam).');
+    expect(found?.message).toBe('Operating key 1 lines up the control shear line in every chamber (the seams of its two-wafer build-ups sit at its cuts), so it would release the core — stock each of those build-ups as one wafer, or choose a control key that, in at least one chamber where it differs from this key, is no deeper than that chamber’s deepest operating cut (one build-up wafer there leaves no seam).');
   });
 
   test('errors come before warnings', () => {

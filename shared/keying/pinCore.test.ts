@@ -2,9 +2,11 @@ import { describe, expect, test } from 'vitest';
 import { hasErrors } from './errors';
 import { pinCore } from './pinCore';
 import { builtInProfiles } from './profiles';
+import { smallKit } from './testing/arbitraries';
 import type { Profile } from './types';
 
 const sfic6 = builtInProfiles['sfic-6'] as Profile;
+const kit6 = smallKit(sfic6);
 const sfic7 = builtInProfiles['sfic-7'] as Profile;
 const same = (d: number, n = 7): string => String(d).repeat(n);
 
@@ -23,8 +25,8 @@ describe('pinCore: the usual .0125 in SFIC formulas', () => {
     // control, change, master, top, buildUp
     [1, 0, 4, 12, [7]],
     [3, 2, 8, 10, [5]],
-    [5, 0, 2, 8, [9, 4]], // 13 units: two wafers (see the two-wafer test)
-    [9, 1, 3, 4, [9, 7]],
+    [5, 0, 2, 8, [13]], // one wafer: the usual kit stocks 2..19 (see the two-wafer test)
+    [9, 1, 3, 4, [16]],
     [6, 4, 8, 7, [8]],
   ])('control %i over depths %i and %i: top %i', (control, change, master, top, buildUp) => {
     const pinning = pinCore(sfic6, { operating: [same(change, 6), same(master, 6)], control: same(control, 6) });
@@ -50,7 +52,7 @@ describe('pinCore: worked examples of our own', () => {
     // Change 0, master 4, grand master 8 in chamber 1; all agree elsewhere.
     const pinning = pinCore(sfic6, { operating: ['022222', '422222', '822222'], control: '755555' });
     expect(pinning.chambers[0]).toMatchObject({ depths: [0, 4, 8], bottom: 0, masters: [4, 4], buildUp: [9], top: 6, total: 23 });
-    expect(pinning.chambers[1]).toMatchObject({ depths: [2], bottom: 2, masters: [], buildUp: [9, 4], top: 8, total: 23 });
+    expect(pinning.chambers[1]).toMatchObject({ depths: [2], bottom: 2, masters: [], buildUp: [13], top: 8, total: 23 });
     expect(pinning.openingsCount).toBe(3);
   });
 
@@ -69,12 +71,20 @@ describe('pinCore: worked examples of our own', () => {
   });
 
   test('a build-up over the largest wafer is made from two, seam kept off the operating depths', () => {
-    // Deepest 2, control 7: 15 units. 10 + 5 would put the seam at 12 = 2 + sleeve, so a key
-    // cut 2 there would line up the control line; 9 + 6 puts it at 11, which no operating key reaches.
-    const pinning = pinCore(sfic6, { operating: ['022222', '222222'], control: '777777' });
+    // A kit of wafers 2..10. Deepest 2, control 7: 15 units. 10 + 5 would put the seam at
+    // 12 = 2 + sleeve, so a key cut 2 there would line up the control line; 9 + 6 puts it
+    // at 11, the control line of depth 1, which no operating key has there.
+    const pinning = pinCore(kit6, { operating: ['022222', '222222'], control: '777777' });
     expect(pinning.chambers[0]?.buildUp).toEqual([9, 6]);
     expect(pinning.chambers[0]?.total).toBe(23);
     expect(hasErrors(pinning)).toBe(false);
+  });
+
+  test('the usual kit (wafers 2..19) makes every build-up one wafer: only the control key releases', () => {
+    // The primer: "0-9 bottom pins, 2-19 wafers" (common practice); 19 = control 9 + 10 - depth 0.
+    const pinning = pinCore(sfic6, { operating: ['000000', '222222'], control: '999999' });
+    expect(pinning.chambers.map((c) => c.buildUp)).toEqual(Array(6).fill([17]));
+    expect(pinning.controlOpeningsCount).toBe(1);
   });
 
   test('a build-up of 0 needs no wafer', () => {
@@ -141,6 +151,27 @@ describe('pinCore: warnings', () => {
     expect(pinCore(sfic6, { operating: ['054680', '224680'], control: '557913' }).issues.map((i) => i.code)).toEqual(['parity-broken']);
     // A one-step profile asks no parity (keying primer: parity belongs to two-step progression).
     expect(pinCore({ ...sfic6, step: 1 }, { operating: ['054680', '224680'], control: '557913', topMaster: '224680' }).issues).toEqual([]);
+  });
+
+  test('more bittings than the control key release: a warning naming the chambers, the seam and the stock that fixes it', () => {
+    // A kit of wafers 2..10 (our own example). Chambers 1 and 2 need 12 units over depth 0:
+    // 10 + 2, seam at the control line of depth 0; each of those chambers releases for 0 and 2.
+    const seamed = pinCore(kit6, { operating: ['004466', '006666'], control: '224444' });
+    expect(seamed.chambers.slice(0, 2).map((c) => c.buildUp)).toEqual([[10, 2], [10, 2]]);
+    expect(seamed.controlOpeningsCount).toBe(4);
+    expect(seamed.issues).toContainEqual({
+      code: 'control-opens-more', severity: 'warning', chamber: 1,
+      message: 'The core releases for 4 bittings, not only the control key: chamber 1 (build-up 10 + 2: its seam meets the control line of depth 0) and chamber 2 (build-up 10 + 2: its seam meets the control line of depth 0) — stock a wafer of 12 units so each build-up is one part, or choose a control cut there closer to the deepest operating cut so one stocked wafer makes the build-up.',
+    });
+    expect(hasErrors(seamed)).toBe(false);
+  });
+
+  test('messages name operating keys by symbol when the caller gives symbols', () => {
+    const macs8: Profile = { ...sfic6, maxAdjacentCut: 8 };
+    const pinning = pinCore(macs8, { operating: ['294680', '094680'], control: '513579', symbols: ['AA1', 'AA'] });
+    expect(pinning.issues.find((i) => i.code === 'macs-exceeded')?.message).toMatch(/^Key AA: cuts 0 and 9/);
+    const bad = pinCore(sfic6, { operating: ['24680', '024680'], control: '513579', symbols: ['AA1', 'AA'] });
+    expect(bad.issues[0]?.message).toMatch(/^Key AA1: the bitting has 5 cuts/);
   });
 });
 

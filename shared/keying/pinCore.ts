@@ -1,6 +1,7 @@
 import { readBitting } from './bitting';
-import { releasesCore } from './keyOperates';
+import { bitCount, buildUpSeam, controlDepthMask, releasesCore } from './keyOperates';
 import { pinChamber } from './pinChamber';
+import { stockTable } from './stock';
 import { macsBreak, sameProgression } from './rules';
 import type { ChamberPinning, CoreKeys, CorePinning, PinningIssue, Profile } from './types';
 
@@ -19,9 +20,13 @@ export function pinCore(profile: Profile, keys: CoreKeys): CorePinning {
       code: 'no-operating-keys', severity: 'error',
       message: 'No operating key was given — list the change key and every master that must turn this core.',
     });
-    return { chambers: [], openingsCount: 0, issues };
+    return { chambers: [], openingsCount: 0, controlOpeningsCount: 0, issues };
   }
 
+  const label = (index: number): string => {
+    const symbol = keys.symbols?.[index];
+    return symbol ? `Key ${symbol}` : `Operating key ${index + 1}`;
+  };
   const operating: number[][] = [];
   let unreadable = false;
   for (let index = 0; index < keys.operating.length; index++) {
@@ -30,7 +35,7 @@ export function pinCore(profile: Profile, keys: CoreKeys): CorePinning {
       operating.push(reading.depths);
     } else {
       unreadable = true;
-      issues.push(withKey(reading, `Operating key ${index + 1}`, index));
+      issues.push(withKey(reading, label(index), index));
     }
   }
   const controlReading = readBitting(profile, keys.control);
@@ -43,23 +48,31 @@ export function pinCore(profile: Profile, keys: CoreKeys): CorePinning {
     unreadable = true;
     issues.push(withKey(topReading, 'Top master'));
   }
-  if (unreadable || !controlReading.ok) return { chambers: [], openingsCount: 0, issues };
+  if (unreadable || !controlReading.ok) return { chambers: [], openingsCount: 0, controlOpeningsCount: 0, issues };
   const control = controlReading.depths;
   const topMaster = topReading?.ok ? topReading.depths : (operating[operating.length - 1] as number[]);
 
+  const stock = stockTable(profile);
   const chambers: ChamberPinning[] = [];
   let openingsCount = 1;
+  let controlOpeningsCount = 1;
   let controlTurnsPlug = true;
+  const extraControl: number[] = [];
   for (let i = 0; i < profile.chambers; i++) {
     const depths = distinctAscending(operating, i);
     const c = control[i] as number;
     if (!depths.includes(c)) controlTurnsPlug = false;
     openingsCount *= depths.length;
-    chambers.push(pinChamber(profile, i + 1, depths, c, issues));
+    const chamber = pinChamber(stock, i + 1, depths, c, issues);
+    chambers.push(chamber);
+    const releasing = bitCount(controlDepthMask(chamber, profile));
+    controlOpeningsCount *= releasing;
+    if (releasing > 1) extraControl.push(i);
   }
 
-  checkKeys(profile, operating, control, chambers, issues);
+  checkKeys(profile, operating, control, chambers, issues, label);
   if (topReading?.ok) checkParity(profile, operating, topMaster, issues);
+  if (controlOpeningsCount > 1) issues.push(controlOpeningsIssue(profile, chambers, extraControl, controlOpeningsCount));
   if (controlTurnsPlug) {
     issues.push({
       code: 'control-turns-plug', severity: 'error',
@@ -76,7 +89,32 @@ export function pinCore(profile: Profile, keys: CoreKeys): CorePinning {
   }
   // Errors first so the one that blocks loading is the one shown; otherwise chamber order.
   if (issues.length > 1) issues.sort((a, b) => (a.severity === b.severity ? 0 : a.severity === 'error' ? -1 : 1));
-  return { chambers, openingsCount, issues };
+  return { chambers, openingsCount, controlOpeningsCount, issues };
+}
+
+/**
+ * More bittings than the control key release the core: name each chamber whose
+ * two-wafer seam meets the control line, the depth it releases, and the fix (one stocked
+ * wafer of the whole build-up, so there is no seam).
+ */
+function controlOpeningsIssue(profile: Profile, chambers: ChamberPinning[], at: number[], count: number): PinningIssue {
+  const parts = at.map((i) => {
+    const ch = chambers[i] as ChamberPinning;
+    const seam = buildUpSeam(ch, profile);
+    const pair = ch.buildUp.join(' + ');
+    return seam?.releasesDepth != null
+      ? `chamber ${ch.chamber} (build-up ${pair}: its seam meets the control line of depth ${seam.releasesDepth})`
+      : `chamber ${ch.chamber}`;
+  });
+  const sizes = [...new Set(at.map((i) => (chambers[i] as ChamberPinning).buildUp.reduce((a, b) => a + b, 0)))].sort((a, b) => a - b);
+  return {
+    code: 'control-opens-more', severity: 'warning', chamber: (at[0] as number) + 1,
+    message: `The core releases for ${count.toLocaleString('en-US')} bittings, not only the control key: ${joinWords(parts)} — stock ${sizes.length === 1 ? 'a wafer' : 'wafers'} of ${joinWords(sizes.map(String))} units so each build-up is one part, or choose a control cut there closer to the deepest operating cut so one stocked wafer makes the build-up.`,
+  };
+}
+
+function joinWords(words: readonly string[]): string {
+  return words.length <= 1 ? (words[0] ?? '') : `${words.slice(0, -1).join(', ')} and ${words[words.length - 1]}`;
 }
 
 /** Checks on whole keys: control selectivity both ways, and the cut limit of each key. */
@@ -86,11 +124,12 @@ function checkKeys(
   control: number[],
   chambers: ChamberPinning[],
   issues: PinningIssue[],
+  labelOf: (index: number) => string,
 ): void {
   for (let index = 0; index < operating.length; index++) {
     const depths = operating[index] as number[];
     if (firstIndexOf(operating, depths) < index) continue; // duplicates are harmless; report once
-    const label = `Operating key ${index + 1}`;
+    const label = labelOf(index);
     if (sameDepths(depths, control)) {
       issues.push({
         code: 'control-equals-operating', severity: 'error', key: index,
@@ -99,7 +138,7 @@ function checkKeys(
     } else if (releasesCore(chambers, depths, profile.sleeveUnits)) {
       issues.push({
         code: 'operating-releases-core', severity: 'error', key: index,
-        message: `${label} lines up the control shear line in every chamber (the seams of its two-wafer build-ups sit at its cuts), so it would release the core — choose a control key that, in at least one chamber where it differs from this key, is no deeper than that chamber’s deepest operating cut (one build-up wafer there leaves no seam).`,
+        message: `${label} lines up the control shear line in every chamber (the seams of its two-wafer build-ups sit at its cuts), so it would release the core — stock each of those build-ups as one wafer, or choose a control key that, in at least one chamber where it differs from this key, is no deeper than that chamber’s deepest operating cut (one build-up wafer there leaves no seam).`,
       });
     }
     pushMacs(profile, depths, label, issues, index);

@@ -36,6 +36,16 @@ describe('built-in profiles', () => {
     expect(sfic7.wafers).not.toContain(1);
   });
 
+  // The primer's usual kit (common practice): bottom pins 0-9, wafers 2-19, so every master
+  // wafer (at most 9) and every build-up (at most control 9 + sleeve 10 - depth 0 = 19) is one part.
+  test('stocks the usual kit: bottom pins 0-9, wafers 2-19, top pins 4-13', () => {
+    for (const p of [sfic6, sfic7]) {
+      expect(p.bottomPins).toEqual([0, 1, 2, 3, 4, 5, 6, 7, 8, 9]);
+      expect(p.wafers).toEqual([2, 3, 4, 5, 6, 7, 8, 9, 10, 11, 12, 13, 14, 15, 16, 17, 18, 19]);
+      expect(p.topPins).toEqual([4, 5, 6, 7, 8, 9, 10, 11, 12, 13]);
+    }
+  });
+
   test('loading order runs back to front whichever end chamber 1 is', () => {
     expect(chambersBackToFront(sfic6)).toEqual([1, 2, 3, 4, 5, 6]);
     expect(chambersBackToFront({ ...sfic6, chamberOneAt: 'front' })).toEqual([6, 5, 4, 3, 2, 1]);

@@ -5,10 +5,12 @@ const range = (from: number, to: number): number[] =>
 
 /*
  * The usual SFIC system: .0125 in steps, depths 0..9, stack 23, sleeve 10 (common
- * practice; see the keying primer). Stocked sizes (from memory, common practice for a
- * shop kit): a bottom pin for every depth; wafers 2..10, since a one-step wafer is too
- * thin to stock (ALOA Keynotes, Sept 2016) and a build-up over 10 is made from two;
- * top pins 3..13, covering 13 - control depth for every control depth plus one spare size.
+ * practice; see the keying primer). Stocked sizes (the primer's usual kit, common
+ * practice): a bottom pin for every depth (0..9); wafers 2..19, since a one-step wafer
+ * is too thin to stock (ALOA Keynotes, Sept 2016) and 19 = control 9 + sleeve 10 - depth 0
+ * is the largest build-up, so every master wafer and build-up is one part and no seam
+ * ever meets the control line; top pins 4..13, the 13 - control the formula needs.
+ * A shop with a smaller kit makes a custom profile with its own stock.
  */
 function sfic(chambers: number): Profile {
   return {
@@ -24,8 +26,8 @@ function sfic(chambers: number): Profile {
     // Published figures disagree; 9 means no limit until the user sets the maker's value.
     maxAdjacentCut: 9,
     bottomPins: range(0, 9),
-    wafers: range(2, 10),
-    topPins: range(3, 13),
+    wafers: range(2, 19),
+    topPins: range(4, 13),
     chamberOneAt: 'back',
   };
 }

@@ -2,7 +2,7 @@ import fc from 'fast-check';
 import { describe, expect, test } from 'vitest';
 import { pinCore } from './pinCore';
 import { builtInProfiles } from './profiles';
-import { keyedCore, text, usualProfile } from './testing/arbitraries';
+import { keyedCore, smallKit, text, usualProfile } from './testing/arbitraries';
 import { partKinds, trayFor, type SizeCount } from './tray';
 import type { CorePinning, Profile } from './types';
 
@@ -40,10 +40,12 @@ describe('trayFor: worked example of our own', () => {
   });
 
   test('two-wafer build-ups are spelled out, lower wafer first', () => {
-    // Depth 0 under control 9: 19 units. 9 + 10 would put the seam at depth 9, inside the
-    // plug's reach; 10 + 9 seams at the control line of depth 0, allowed as the fallback.
-    const deep = pinCore(sfic6, { operating: ['024680', '224680'], control: '357919' });
-    const t = trayFor(sfic6, [deep, deep]);
+    // A kit of wafers 2..10. Depth 0 under control 9: 19 units. 9 + 10 would put the seam
+    // at depth 9, inside the plug's reach; 10 + 9 seams at the control line of depth 0,
+    // allowed as the fallback.
+    const kit6 = smallKit(sfic6);
+    const deep = pinCore(kit6, { operating: ['024680', '224680'], control: '357919' });
+    const t = trayFor(kit6, [deep, deep]);
     expect(t.twoWaferBuildUps).toContainEqual({ chamber: 6, total: 19, wafers: [10, 9], count: 2 });
     expect(t.perChamber[5]?.buildUp).toEqual([{ size: 9, count: 2 }, { size: 10, count: 2 }]);
   });

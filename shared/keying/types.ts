@@ -63,6 +63,12 @@ export interface CorePinning {
   chambers: ChamberPinning[];
   /** How many bittings turn the plug: product of |depths| over chambers. */
   openingsCount: number;
+  /**
+   * How many bittings release the core (line up the control shear line in every
+   * chamber), from the parts as loaded: 1 when only the control key does; more when a
+   * two-wafer seam meets the control line of another depth. 0 without chambers.
+   */
+  controlOpeningsCount: number;
   issues: PinningIssue[];
 }
 
@@ -75,4 +81,6 @@ export interface CoreKeys {
    * is taken as the top master (list keys from the change key up).
    */
   topMaster?: string;
+  /** Key symbols parallel to `operating`, so messages name "Key AA1" and not a list position. */
+  symbols?: readonly (string | undefined)[];
 }

@@ -1,7 +1,7 @@
 import { describe, expect, test } from 'vitest';
 import { pinCore, type Profile } from '@shared/keying';
 import { benchBlocker, chamberOneWords, loadingOrder, loadingSteps, partName } from './steps';
-import { mixedKeys, primerKeys, sfic6 } from './testing/fixtures';
+import { kit6, mixedKeys, primerKeys, sfic6 } from './testing/fixtures';
 
 describe('loadingSteps', () => {
   // keying-primer worked example: change 2, master 6, control 4 gives bottom 2, master
@@ -45,7 +45,7 @@ describe('loadingSteps', () => {
 
   // keying-primer stocked sizes: a build-up over the largest wafer is two wafers, lower first.
   test('a two-wafer build-up is two steps, lower wafer first', () => {
-    const steps = loadingSteps(pinCore(sfic6, mixedKeys), sfic6);
+    const steps = loadingSteps(pinCore(kit6, mixedKeys), kit6);
     const three = steps.filter((s) => s.chamber === 3);
     expect(three.map((s) => [s.kind, s.size])).toEqual([['bottom', 4], ['buildUp', 9], ['buildUp', 6], ['top', 4]]);
     expect(three.filter((s) => s.kind === 'buildUp').map(partName)).toEqual(['Build-up wafer 1 of 2', 'Build-up wafer 2 of 2']);

@@ -1,7 +1,7 @@
 import { describe, expect, test } from 'vitest';
 import { pinCore, trayFor } from '@shared/keying';
 import { trayRows, twoWaferWords } from './trayRows';
-import { mixedKeys, primerKeys, sfic6 } from './testing/fixtures';
+import { kit6, mixedKeys, primerKeys, sfic6 } from './testing/fixtures';
 
 describe('Tray rows', () => {
   // keying-primer worked example (bottom 2, master 4, build-up 8, top 9 in every chamber), two cores.
@@ -17,7 +17,7 @@ describe('Tray rows', () => {
 
   // keying-primer stocked sizes: the pick list must say when a build-up is two wafers.
   test('zeros where a chamber takes none, totals add up, two-wafer build-ups spelled out', () => {
-    const tray = trayFor(sfic6, [pinCore(sfic6, mixedKeys)]);
+    const tray = trayFor(kit6, [pinCore(kit6, mixedKeys)]);
     const rows = trayRows(tray);
     for (const r of rows) expect(r.perChamber.reduce((a, b) => a + b, 0)).toBe(r.total);
     expect(rows.find((r) => r.kind === 'master' && r.size === 2)?.perChamber).toEqual([1, 0, 0, 0, 0, 1]);

@@ -3,7 +3,7 @@ import { describe, expect, test } from 'vitest';
 import { readBitting } from '../bitting';
 import { keyOperates } from '../keyOperates';
 import { pinCore } from '../pinCore';
-import { smallProfile, usualProfile } from '../testing/arbitraries';
+import { smallKit, smallProfile, usualProfile } from '../testing/arbitraries';
 import type { Profile } from '../types';
 import { auditSystem } from './auditSystem';
 import type { AuditInput, KeyLevel } from './types';
@@ -41,7 +41,8 @@ function systemArb(profile: Profile): fc.Arbitrary<AuditInput> {
   });
 }
 
-const systems = fc.oneof(usualProfile, smallProfile).chain((profile) => fc.tuple(fc.constant(profile), systemArb(profile)));
+// A kit of wafers 2..10 makes two-wafer seams, so keys that release cores are common too.
+const systems = fc.oneof(usualProfile, smallProfile, usualProfile.map(smallKit)).chain((profile) => fc.tuple(fc.constant(profile), systemArb(profile)));
 
 /**
  * The access findings worked out by brute force from the records alone, sharing nothing
@@ -120,6 +121,23 @@ describe('auditSystem: the expensive searches', () => {
           const turns = keyOperates(pinning, profile, key.bitting).plug;
           const reported = findings.some((f) => f.keyIds?.[0] === key.id && f.cores?.includes(core.id));
           expect(reported, `${key.id} in ${core.id}`).toBe(turns && !intended);
+        }
+      }
+    }), { numRuns: 150 });
+  });
+
+  test('every key that releases a core, other than one cut like the control key, is reported for that core', () => {
+    fc.assert(fc.property(systems, ([profile, system]) => {
+      const findings = auditSystem(profile, system).filter((f) => f.code === 'key-releases-core');
+      const readable = system.keys.filter((k) => readBitting(profile, k.bitting).ok);
+      const control = system.control.trim();
+      for (const core of system.cores) {
+        const operating = readable.filter((k) => core.operating.includes(k.id));
+        const pinning = pinCore(profile, { operating: operating.map((k) => k.bitting), control: system.control });
+        for (const key of readable) {
+          const releases = keyOperates(pinning, profile, key.bitting).control && key.bitting.trim() !== control;
+          const reported = findings.some((f) => f.keyIds?.[0] === key.id && f.cores?.includes(core.id));
+          expect(reported, `${key.id} in ${core.id}`).toBe(releases);
         }
       }
     }), { numRuns: 150 });

@@ -8,6 +8,7 @@ import { exposureFinding } from './exposure';
 import type { AuditFinders } from './finders';
 import { finding, sortFindings, type Ranked } from './format';
 import { keyFindings } from './keyFindings';
+import { releaseFindings } from './releaseFindings';
 import type { AuditFinding, AuditInput } from './types';
 
 /**
@@ -27,6 +28,7 @@ export function auditSystemWith(profile: Profile, system: AuditInput, finders: A
     ...keyFindings(ctx, finders.closeChangeKeys(ctx)),
     ...coreFindings(ctx),
     ...accessFindings(ctx, finders.keysTurning(ctx)),
+    ...releaseFindings(ctx, finders.keysReleasing(ctx)),
   ];
   const exposure = exposureFinding(ctx);
   if (exposure) ranked.push(exposure);
@@ -34,10 +36,12 @@ export function auditSystemWith(profile: Profile, system: AuditInput, finders: A
 }
 
 /**
- * Every problem in a system, errors first: unintended access, intended keys that fail,
- * unbuildable cores, large openings counts, duplicate and too-close keys, control-key
- * problems, cut-rule breaks, and the rights-amplification summary. Findings name keys by
- * symbol (with ids beside) and cores by id.
+ * Every problem in a system, errors first: unintended access, keys that release cores
+ * they are not the control key of, intended keys that fail, unbuildable cores, large
+ * openings counts, duplicate and too-close keys, control-key problems, cut-rule breaks,
+ * and the summaries (control openings, change keys one position apart, rights
+ * amplification). Messages name keys by symbol and cores by label (tag and door), never
+ * by a position in a list; `keyIds` and `cores` carry the ids.
  */
 export function auditSystem(profile: Profile, system: AuditInput): AuditFinding[] {
   return auditSystemWith(profile, system, accessIndex);

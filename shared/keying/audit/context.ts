@@ -27,6 +27,15 @@ export interface AuditContext {
   /** Index of the top master, -1 when there is none with a readable bitting. */
   topMaster: number;
   isChange: boolean[];
+  /** Valid keys by their bitting as a base-10 number (chamber 1 the highest digit), ascending. */
+  keysByCode: Map<number, number[]>;
+}
+
+/** A bitting as one number, chamber 1 the highest digit; depths are single digits. */
+export function bittingCode(depths: readonly number[]): number {
+  let code = 0;
+  for (const d of depths) code = code * 10 + d;
+  return code;
 }
 
 const levelRank: Record<KeyLevel, number> = { 'great-grand-master': 0, 'grand-master': 1, master: 2, change: 3 };
@@ -75,15 +84,24 @@ export function buildContext(profile: Profile, system: AuditInput): AuditContext
   const openers = openerSets.map((s) => [...s].sort((a, b) => a - b));
 
   const bittingOf = (k: number): string => (system.keys[k]?.bitting ?? '').trim();
+  const symbolOf = (k: number): string => system.keys[k]?.symbol ?? '';
+  // Symbols go in so pinCore's messages name "Key AA1", never a position in this list.
   const pinnings = coreKeys.map((keys) =>
-    pinCore(profile, { operating: keys.map(bittingOf), control: system.control }),
+    pinCore(profile, { operating: keys.map(bittingOf), control: system.control, symbols: keys.map(symbolOf) }),
   );
+  const keysByCode = new Map<number, number[]>();
+  for (const k of validKeys) {
+    const code = bittingCode(depths[k] as number[]);
+    const list = keysByCode.get(code);
+    if (list) list.push(k);
+    else keysByCode.set(code, [k]);
+  }
 
   const topMaster = pickTopMaster(system, depths);
   const isChange = system.keys.map((k, i) => i !== topMaster && levelOf(k) === 'change');
   return {
     profile, system, depths, validKeys, control: controlReading.depths,
-    coreKeys, openers, unknownCores, unknownKeys, pinnings, topMaster, isChange,
+    coreKeys, openers, unknownCores, unknownKeys, pinnings, topMaster, isChange, keysByCode,
   };
 }
 

@@ -11,11 +11,13 @@ export interface CloseGroup {
 /**
  * The two searches that decide the audit's cost. The indexed audit and the all-pairs
  * baseline plug in different ones and must return the same, in the same order:
- * `keysTurning` ascending key indexes per core; `closeChangeKeys` sorted by
+ * `keysTurning` and `keysReleasing` ascending key indexes per core (the keys that turn
+ * the plug; the keys that line up the control shear line); `closeChangeKeys` sorted by
  * (first key, position).
  */
 export interface AuditFinders {
   keysTurning(ctx: AuditContext): number[][];
+  keysReleasing(ctx: AuditContext): number[][];
   closeChangeKeys(ctx: AuditContext): CloseGroup[];
 }
 

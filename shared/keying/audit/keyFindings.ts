@@ -50,14 +50,7 @@ export function keyFindings(ctx: AuditContext, close: CloseGroup[]): Ranked[] {
     }));
   }
 
-  for (const group of close) {
-    const refs = keyRefs(ctx, group.keys);
-    out.push(finding('change-keys-too-close', group.keys[0] as number, {
-      message: `Change keys ${nameList(refs.keys)} differ only in chamber ${group.position + 1}: a worn key or a slightly miscut one may work the other doors.`,
-      advice: 'Plan change keys at least two positions apart (for example, progress two positions together), or accept and record the risk.',
-      ...refs, chambers: [group.position + 1],
-    }));
-  }
+  out.push(...closeFindings(ctx, close));
 
   const top = ctx.topMaster >= 0 ? (depths[ctx.topMaster] as number[]) : null;
   for (const k of ctx.validKeys) {
@@ -82,6 +75,50 @@ export function keyFindings(ctx: AuditContext, close: CloseGroup[]): Ranked[] {
         ...keyRefs(ctx, [k]), chambers: [i + 1, i + 2],
       }));
     }
+  }
+  return out;
+}
+
+/** Lines listed under the one-position-apart summary; the count says how many in all. */
+const detailLines = 500;
+
+/**
+ * Change keys that differ in one position only. Under two-step progression, a position
+ * apart by two steps is the normal minimum (keying primer), so those groups make ONE
+ * line of design information with the count and the groups as details; a group whose
+ * depths there differ by less than the step (or any group in a one-step system) stays a
+ * warning of its own.
+ */
+function closeFindings(ctx: AuditContext, close: CloseGroup[]): Ranked[] {
+  const out: Ranked[] = [];
+  const { profile, depths } = ctx;
+  const normal: CloseGroup[] = [];
+  for (const group of close) {
+    const cut = (k: number): number => (depths[k] as number[])[group.position] as number;
+    const first = cut(group.keys[0] as number);
+    if (profile.step === 2 && group.keys.every((k) => sameProgression(profile, cut(k), first))) {
+      normal.push(group);
+      continue;
+    }
+    const refs = keyRefs(ctx, group.keys);
+    out.push(finding('change-keys-too-close', group.keys[0] as number, {
+      message: `Change keys ${nameList(refs.keys)} differ only in chamber ${group.position + 1}, by less than the progression step: a worn key or a slightly miscut one may work the other doors.`,
+      advice: 'Recut one of them to the top master’s parity there, or progress a second position; if the risk is accepted, acknowledge this finding with a note.',
+      ...refs, chambers: [group.position + 1],
+    }));
+  }
+  if (normal.length > 0) {
+    const involved = [...new Set(normal.flatMap((g) => g.keys))].sort((a, b) => a - b);
+    const lines = normal.slice(0, detailLines).map((g) => `${nameList(keyRefs(ctx, g.keys).keys, 8)}: chamber ${g.position + 1}`);
+    if (normal.length > detailLines) lines.push(`and ${(normal.length - detailLines).toLocaleString('en-US')} more groups`);
+    const chambers = [...new Set(normal.map((g) => g.position + 1))].sort((a, b) => a - b);
+    out.push(finding('change-keys-one-apart', 0, {
+      message: `${plural(normal.length, 'group')} of change keys (${plural(involved.length, 'key')}) differ in one position only, by two steps or more: the normal minimum of two-step progression, in chamber${chambers.length === 1 ? '' : 's'} ${chambers.join(', ')}.`,
+      advice: 'Nothing to fix. Where a worn or miscut key must not work a neighbour’s door (high-security rooms), give those doors change keys two positions apart.',
+      ...keyRefs(ctx, involved), chambers,
+      data: { groups: normal.length, keys: involved.length },
+      details: lines,
+    }));
   }
   return out;
 }

@@ -52,4 +52,6 @@ export interface AuditFinding {
   chambers?: number[];
   /** Figures behind the message, for reports. */
   data?: Record<string, number>;
+  /** One line per item a summary counts (shown behind a disclosure); never a bitting. */
+  details?: string[];
 }

@@ -76,3 +76,11 @@ export function* allBittings(profile: Profile): Generator<number[]> {
     depths[i] = (depths[i] as number) + 1;
   }
 }
+
+/**
+ * A shop whose kit stocks wafers 2..10 only (the old built-in stock), so build-ups over
+ * 10 are made of two wafers and their seams can meet the control line.
+ */
+export function smallKit(profile: Profile): Profile {
+  return { ...profile, id: `${profile.id}-kit10`, label: `${profile.label}, wafers 2-10`, wafers: range(2, 10), topPins: range(3, 13) };
+}

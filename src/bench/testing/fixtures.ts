@@ -6,10 +6,12 @@ import { builtInProfiles, pinCore, type CoreKeys, type Profile } from '@shared/k
 import type { KeyCheckItem, PacketCore } from '@shared/schemas/packet';
 
 export const sfic6 = builtInProfiles['sfic-6'] as Profile;
+/** A shop kit of wafers 2..10 (a custom profile): build-ups over 10 are two wafers. */
+export const kit6: Profile = { ...sfic6, id: 'sfic-6-kit10', label: 'SFIC 6-pin, wafers 2-10', wafers: [2, 3, 4, 5, 6, 7, 8, 9, 10] };
 
 /** The keying primer's worked example in every chamber: change 2, master 6, control 4. */
 export const primerKeys: CoreKeys = { operating: ['222222', '666666'], control: '444444' };
-/** Mixed chambers: some mastered, some not, three with a two-wafer build-up. */
+/** Mixed chambers: some mastered, some not; with kit6, three with a two-wafer build-up. */
 export const mixedKeys: CoreKeys = { operating: ['024682', '264680'], control: '539157' };
 
 /** Deliberately out of checking order, to show the Bench sorts it. */
