@@ -9,6 +9,7 @@ import { badRequest } from '../errors';
 import { actorOf, allow } from '../middleware/auth';
 import { parse } from '../middleware/validate';
 import { audit } from '../services/audit';
+import { acknowledge, withAcknowledgements } from '../services/auditAcknowledgements';
 import { importKeys } from '../services/csvImport';
 import { addKeys, createSystem, getSystem, listKeys, listSystems, loadSystem, placementSystemOf, updateKey, updateSystem } from '../services/keySystems';
 import { createProfile, listProfiles, updateProfile } from '../services/profiles';
@@ -17,9 +18,19 @@ import { auditInputFor } from '../services/systemAudit';
 export const upload = multer({ storage: multer.memoryStorage(), limits: { fileSize: 1024 * 1024, files: 1 } });
 const IdParam = z.object({ id: Id });
 const Reveal = z.object({ reveal: z.enum(['0', '1']).optional() });
+const Acknowledge = z.strictObject({
+  fingerprint: z.string().regex(/^[0-9a-f]{64}$/, { error: 'the fingerprint of a finding from this key system’s audit (64 hex digits)' }),
+  note: z.string().trim().min(3, { error: 'write why the finding is accepted (3 to 500 characters)' }).max(500, { error: 'keep the note to 500 characters' }),
+});
 
-export function keySystemsRouter({ db, sealer }: Ctx): Router {
+export function keySystemsRouter({ db, sealer, config }: Ctx): Router {
   const r = Router();
+  /** The audit as the console shows it: each finding with its fingerprint and any acknowledgement. */
+  async function currentAudit(id: string) {
+    const input = await auditInputFor(db, sealer, id);
+    const findings = await withAcknowledgements(db, id, config.dataKey, input.audit, auditSystem(input.profile, input.audit));
+    return { findings, keys: input.audit.keys.length, cores: input.audit.cores.length };
+  }
 
   r.get('/profiles', allow('supervisor', 'admin'), async (_req, res) => res.json({ profiles: await listProfiles(db) }));
   r.post('/profiles', allow('admin'), async (req, res) => {
@@ -147,10 +158,28 @@ export function keySystemsRouter({ db, sealer }: Ctx): Router {
 
   r.get('/key-systems/:id/audit', allow('supervisor', 'admin'), async (req, res) => {
     const { id } = parse(IdParam, req.params);
-    const input = await auditInputFor(db, sealer, id);
-    const findings = auditSystem(input.profile, input.audit);
-    await audit(db, actorOf(req), 'key-system.audited', { type: 'key-system', id }, { findings: findings.length });
-    res.json({ findings, keys: input.audit.keys.length, cores: input.audit.cores.length });
+    const result = await currentAudit(id);
+    const acknowledged = result.findings.filter((f) => f.acknowledged).length;
+    await audit(db, actorOf(req), 'key-system.audited', { type: 'key-system', id }, { findings: result.findings.length, acknowledged });
+    res.json(result);
+  });
+
+  /** An administrator accepts a warning or a note of the audit, with a note; it stays accepted until its keys change. */
+  r.post('/key-systems/:id/audit/acknowledgements', allow('admin'), async (req, res) => {
+    const { id } = parse(IdParam, req.params);
+    const input = parse(Acknowledge, req.body, 'The acknowledgement');
+    const { findings } = await currentAudit(id);
+    const finding = findings.find((f) => f.fingerprint === input.fingerprint);
+    if (!finding) {
+      throw badRequest('No finding of this key system’s current audit has that fingerprint: the keys it involves may have changed since. Run the audit again and acknowledge the finding it shows.', [{ field: 'fingerprint', message: 'not a finding of the current audit' }]);
+    }
+    if (finding.severity === 'error') {
+      throw badRequest('Errors cannot be acknowledged: fix what the finding names (its advice says how), then audit again.', [{ field: 'fingerprint', message: 'the finding is an error' }]);
+    }
+    const user = req.user!;
+    const acknowledgement = await acknowledge(db, { systemId: id, finding, note: input.note, user: { id: user.id, name: user.name } });
+    await audit(db, actorOf(req), 'audit-finding.acknowledged', { type: 'key-system', id }, { code: finding.code, fingerprint: finding.fingerprint, note: input.note });
+    res.status(201).json({ fingerprint: finding.fingerprint, acknowledgement });
   });
   return r;
 }

@@ -103,7 +103,7 @@ export function workOrdersRouter({ db, sealer, mailer, config }: Ctx): Router {
     const chain = chainOf(system.keys, input.keyId);
     if (!chain.length) throw badRequest('That key is not in this key system.', [{ field: 'keyId', message: 'not in this key system' }]);
     const pinning = pinningFor(system, chain);
-    res.json({ issues: pinning.issues, openingsCount: pinning.openingsCount, chain: chain.map((k) => k.symbol) });
+    res.json({ issues: pinning.issues, openingsCount: pinning.openingsCount, controlOpeningsCount: pinning.controlOpeningsCount, chain: chain.map((k) => k.symbol) });
   });
   return r;
 }

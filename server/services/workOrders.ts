@@ -17,7 +17,7 @@ export const PACKET_HOURS = 12;
 export function pinningFor(system: LoadedSystem, operating: SystemKey[]): CorePinning {
   const chain = [...operating].sort((a, b) => levelRank(b.level) - levelRank(a.level));
   const top = chain.find((k) => !k.crossKeyed && k.level !== 'change') ?? chain[chain.length - 1];
-  return pinCore(system.profile, { operating: chain.map((k) => k.bitting), control: system.control, ...(top ? { topMaster: top.bitting } : {}) });
+  return pinCore(system.profile, { operating: chain.map((k) => k.bitting), symbols: chain.map((k) => k.symbol), control: system.control, ...(top ? { topMaster: top.bitting } : {}) });
 }
 
 function levelRank(level: string): number {

@@ -20,6 +20,9 @@ export const AuditFinding = z.object({
   cores: z.array(z.string()).optional(),
   chambers: z.array(z.number()).optional(),
   data: z.record(z.string(), z.number()).optional(),
+  details: z.array(z.string()).optional(),
+  fingerprint: z.string(),
+  acknowledged: z.object({ note: z.string(), by: z.string(), at: z.string() }).nullable(),
 });
 export type AuditFinding = z.infer<typeof AuditFinding>;
 export const SystemAudit = z.object({ findings: z.array(AuditFinding), keys: z.number(), cores: z.number() });
@@ -36,3 +39,6 @@ export const previewProgression = (id: string, input: ProgressionInput) =>
   request('POST', `/api/key-systems/${id}/progression`, { body: input, schema: ProgressionPreview });
 export const importKeys = (id: string, file: File, commit: boolean) => uploadCsv(`/api/key-systems/${id}/import`, file, commit);
 export const auditKeySystem = (id: string) => request('GET', `/api/key-systems/${id}/audit`, { schema: SystemAudit });
+/** Administrators only; the server audits it. */
+export const acknowledgeFinding = (id: string, fingerprint: string, note: string) =>
+  request('POST', `/api/key-systems/${id}/audit/acknowledgements`, { body: { fingerprint, note }, schema: z.object({ fingerprint: z.string() }) });
