@@ -64,7 +64,7 @@ describe('controlOpeningsCount against brute force', () => {
       // The warning is there exactly when more than one bitting releases.
       expect(pinning.issues.some((i) => i.code === 'control-opens-more')).toBe(releasing > 1);
     }), { numRuns: 300 });
-  });
+  }, 60_000);
 
   test('a chart without two-wafer build-ups releases for the control key alone (primer: one break at c + S)', () => {
     fc.assert(fc.property(keyedCore(seamProfile), (core) => {
@@ -72,7 +72,7 @@ describe('controlOpeningsCount against brute force', () => {
       fc.pre(!hasErrors(pinning) && pinning.chambers.every((c) => c.buildUp.length <= 1));
       expect(pinning.controlOpeningsCount).toBe(1);
     }), { numRuns: 200 });
-  });
+  }, 60_000);
 });
 
 describe('two-wafer splits (fast-check against every pair of stocked wafers)', () => {

@@ -12,7 +12,7 @@ export type { ProfileProblem } from './validateProfile';
 export { formatBitting, parseBitting, readBitting } from './bitting';
 export type { BittingReading } from './bitting';
 export { pinCore } from './pinCore';
-export { keyOperates } from './keyOperates';
+export { buildUpSeam, controlDepthMask, keyOperates } from './keyOperates';
 export { maxProgressionWithoutLimit, progressKeys, progressionMethods } from './progressKeys';
 export type { ProgressOptions, ProgressionMethod } from './progressKeys';
 export { checkKeyPlacement, masterConstantChambers, placementChecker } from './placement';

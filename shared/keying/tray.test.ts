@@ -46,7 +46,7 @@ describe('trayFor: worked example of our own', () => {
     const kit6 = smallKit(sfic6);
     const deep = pinCore(kit6, { operating: ['024680', '224680'], control: '357919' });
     const t = trayFor(kit6, [deep, deep]);
-    expect(t.twoWaferBuildUps).toContainEqual({ chamber: 6, total: 19, wafers: [10, 9], count: 2 });
+    expect(t.twoWaferBuildUps).toContainEqual({ chamber: 6, total: 19, wafers: [10, 9], count: 2, seamReleases: [0] });
     expect(t.perChamber[5]?.buildUp).toEqual([{ size: 9, count: 2 }, { size: 10, count: 2 }]);
   });
 });

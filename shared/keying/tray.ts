@@ -1,4 +1,5 @@
 import { hasErrors } from './errors';
+import { buildUpSeam } from './keyOperates';
 import type { CorePinning, Profile } from './types';
 
 export type PartKind = 'bottom' | 'master' | 'buildUp' | 'top';
@@ -22,6 +23,12 @@ export interface TwoWaferBuildUp {
   total: number;
   wafers: [number, number];
   count: number;
+  /**
+   * Depths whose control line the seam between the two wafers meets, over the cores
+   * counted (ascending): a key cut to one of them there lines up the control shear line
+   * in this chamber. Empty when the seam is out of every key's reach.
+   */
+  seamReleases: number[];
 }
 
 export interface Tray {
@@ -77,8 +84,10 @@ export function trayFor(profile: Profile, pinnings: CorePinning[]): Tray {
       if (ch.buildUp.length === 2) {
         const [lower, upper] = ch.buildUp as [number, number];
         const id = `${ch.chamber}:${lower}+${upper}`;
-        const entry = pairs.get(id) ?? { chamber: ch.chamber, total: lower + upper, wafers: [lower, upper], count: 0 };
+        const entry = pairs.get(id) ?? { chamber: ch.chamber, total: lower + upper, wafers: [lower, upper], count: 0, seamReleases: [] };
         entry.count++;
+        const depth = buildUpSeam(ch, profile)?.releasesDepth;
+        if (depth != null && !entry.seamReleases.includes(depth)) entry.seamReleases = [...entry.seamReleases, depth].sort((a, b) => a - b);
         pairs.set(id, entry);
       }
     }

@@ -33,7 +33,12 @@ export function trayRows(tray: Tray): TrayRow[] {
   );
 }
 
-/** "Chamber 3: build-up 14 = wafer 9 + wafer 5, ×2" (lower wafer first, as loaded). */
+/**
+ * "Chamber 3: build-up 14 = wafer 9 + wafer 5, ×2 · seam at the control line of depth 3"
+ * (lower wafer first, as loaded). The seam is one more break: a key cut to that depth
+ * there lines up the control shear line, so the words say which depth.
+ */
 export function twoWaferWords(b: TwoWaferBuildUp): string {
-  return `Chamber ${b.chamber}: build-up ${b.total} = wafer ${b.wafers[0]} + wafer ${b.wafers[1]}, ×${b.count}`;
+  const seam = b.seamReleases?.length ? ` · seam at the control line of depth ${b.seamReleases.join(', ')}` : '';
+  return `Chamber ${b.chamber}: build-up ${b.total} = wafer ${b.wafers[0]} + wafer ${b.wafers[1]}, ×${b.count}${seam}`;
 }

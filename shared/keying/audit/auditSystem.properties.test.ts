@@ -91,7 +91,7 @@ describe('auditSystem against independent oracles (fast-check, brute force)', ()
       }
       expect([...found].sort()).toEqual([...bruteAccess(profile, system)].sort());
     }), { numRuns: 200 });
-  });
+  }, 60_000);
 
   test('duplicates and the control key: keys sharing one readable bitting are named together', () => {
     fc.assert(fc.property(systems, ([profile, system]) => {
@@ -105,7 +105,7 @@ describe('auditSystem against independent oracles (fast-check, brute force)', ()
       const asControl = readable.filter((k) => k.bitting.trim() === system.control.trim()).map((k) => k.id);
       expect(findings.filter((f) => f.code === 'control-equals-key').flatMap((f) => f.keyIds ?? [])).toEqual(asControl);
     }), { numRuns: 200 });
-  });
+  }, 60_000);
 });
 
 describe('auditSystem: the expensive searches', () => {
@@ -124,7 +124,7 @@ describe('auditSystem: the expensive searches', () => {
         }
       }
     }), { numRuns: 150 });
-  });
+  }, 60_000);
 
   test('every key that releases a core, other than one cut like the control key, is reported for that core', () => {
     fc.assert(fc.property(systems, ([profile, system]) => {
@@ -141,5 +141,5 @@ describe('auditSystem: the expensive searches', () => {
         }
       }
     }), { numRuns: 150 });
-  });
+  }, 60_000);
 });
