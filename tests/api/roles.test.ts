@@ -57,6 +57,7 @@ const matrix: Entry[] = [
   { method: 'POST', route: '/api/key-systems/:id/progression', path: '/api/key-systems/{ks}/progression', allow: ADM, ok: 400, body: {} },
   { method: 'POST', route: '/api/key-systems/:id/import', path: '/api/key-systems/{ks}/import', allow: ADM, ok: 400, body: {} },
   { method: 'GET', route: '/api/key-systems/:id/audit', path: '/api/key-systems/{ks}/audit', allow: SUP, ok: 200 },
+  { method: 'POST', route: '/api/key-systems/:id/audit/acknowledgements', path: '/api/key-systems/{ks}/audit/acknowledgements', allow: ADM, ok: 400, body: {} },
   { method: 'GET', route: '/api/doors', path: '/api/doors', allow: SUP, ok: 200 },
   { method: 'POST', route: '/api/doors', path: '/api/doors', allow: ADM, ok: 400, body: {} },
   { method: 'POST', route: '/api/doors/import', path: '/api/doors/import', allow: ADM, ok: 400, body: {} },
