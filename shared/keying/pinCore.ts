@@ -71,7 +71,7 @@ export function pinCore(profile: Profile, keys: CoreKeys): CorePinning {
   }
 
   checkKeys(profile, operating, control, chambers, issues, label);
-  if (topReading?.ok) checkParity(profile, operating, topMaster, issues);
+  if (topReading?.ok) checkParity(profile, operating, topMaster, issues, label);
   if (controlOpeningsCount > 1) issues.push(controlOpeningsIssue(profile, chambers, extraControl, controlOpeningsCount));
   if (controlTurnsPlug) {
     issues.push({
@@ -151,7 +151,7 @@ function checkKeys(
  * under two-step progression (keying primer). A warning, since the core can still be
  * built (with an odd-sized wafer); entry and progression refuse such keys.
  */
-function checkParity(profile: Profile, operating: number[][], top: number[], issues: PinningIssue[]): void {
+function checkParity(profile: Profile, operating: number[][], top: number[], issues: PinningIssue[], labelOf: (index: number) => string): void {
   if (profile.step < 2) return;
   for (let index = 0; index < operating.length; index++) {
     const depths = operating[index] as number[];
@@ -160,7 +160,7 @@ function checkParity(profile: Profile, operating: number[][], top: number[], iss
       if (sameProgression(profile, depths[i] as number, top[i] as number)) continue;
       issues.push({
         code: 'key-parity', severity: 'warning', chamber: i + 1, key: index,
-        message: `Operating key ${index + 1}, chamber ${i + 1}: cut ${depths[i]} breaks the top master’s parity there; under ${profile.step}-step progression every key keeps it — recut this key.`,
+        message: `${labelOf(index)}, chamber ${i + 1}: cut ${depths[i]} breaks the top master’s parity there; under ${profile.step}-step progression every key keeps it — recut this key.`,
       });
     }
   }
