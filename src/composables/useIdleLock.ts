@@ -35,7 +35,7 @@ export function useIdleLock(options: IdleLockOptions = {}): { lastActivity: Ref<
 
   function lockNow(): void {
     if (options.onLock) return options.onLock();
-    vault.lock();
+    vault.lock(options.minutes ?? idleMinutes());
     // Bench progress is already saved step by step; the Bench reopens where it was.
     void router.replace({ name: 'unlock', query: { next: route.fullPath } });
   }

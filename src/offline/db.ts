@@ -4,7 +4,7 @@
  *
  *   vault                 the vault record: salt, iteration count, wrapped keys, attempts (no plaintext secret)
  *   packet:<workOrderId>  a work order's packet, sealed with the packet key
- *   bench:<coreId>        Bench progress of one core, sealed with the packet key
+ *   bench:<coreId>        Bench progress of one core, sealed with the outbox key (escrowed; older: packet key)
  *   outbox:<clientId>     one finished record waiting for Sync, sealed with the outbox key
  *   sync                  when the last sync succeeded (holds no record)
  *

@@ -35,6 +35,8 @@ export const bench = {
   getProgress: benchStore.getProgress,
   saveProgress: benchStore.saveProgress,
   clearProgress: benchStore.clearProgress,
+  /** Counts only (works while locked): what a forgotten passphrase keeps and loses. */
+  summary: benchStore.progressSummary,
 } as const;
 
 export const sync = createSyncEngine({
@@ -42,10 +44,10 @@ export const sync = createSyncEngine({
   onRevoked: vaultStore.revoke,
 });
 
-/** Refreshes the waiting count on screen after a write; the leader's loop sends it. */
+/** After a write, sends it at once when online (nudge); else the waiting count on screen goes up and the loop sends it later. */
 async function counted(write: Promise<WriteResult>): Promise<WriteResult> {
   const result = await write;
-  if (result.saved.length) void sync.refresh().catch(() => undefined);
+  if (result.saved.length && !sync.nudge()) void sync.refresh().catch(() => undefined);
   return result;
 }
 
@@ -66,7 +68,7 @@ export const outbox = {
 
 export type { ProgressUpdate } from './recordFinished';
 export { requestPersistence, type Persistence } from './storage';
-export { BenchProgress } from './bench';
+export { BenchProgress, type ProgressSummary } from './bench';
 export { checkPassphrase, PASSPHRASE_RULE, type PassphraseCheck } from './passphrase';
 export { MAX_ATTEMPTS, type VaultState, type VaultStatus, type VaultResult, type VaultErrorCode, type Who, type KdfOptions } from './vault';
 export { PBKDF2_ITERATIONS } from './crypto';

@@ -77,20 +77,20 @@ describe('unlocking', () => {
     expect((await vault.status()).remainingAttempts).toBe(5);
   });
 
-  it('after 5 wrong passphrases wipes packets and Bench progress but keeps the outbox', async () => {
-    // the issue: repeated wrong attempts wipe the packets; never lose finished work
+  it('after 5 wrong passphrases wipes packets but keeps the outbox and the escrowed Bench progress', async () => {
+    // the issue: repeated wrong attempts wipe the packets; never lose finished work (nor a half-built core)
     const { p, coreId, records } = await morningsWork();
     vault.lock();
     for (const left of [4, 3, 2, 1]) expect(await vault.unlock(`wrong guess ${left}x`)).toMatchObject({ code: 'wrong', remainingAttempts: left });
     expect(await vault.unlock('wrong guess 0x')).toMatchObject({ ok: false, code: 'wiped' });
     const keys = await allKeys();
-    expect(keys.filter((k) => k.startsWith('packet:') || k.startsWith('bench:'))).toEqual([]);
+    expect(keys.filter((k) => k.startsWith('packet:'))).toEqual([]);
+    expect(keys.filter((k) => k.startsWith('bench:'))).toEqual([KEY.bench(coreId)]);
     expect(keys.filter((k) => k.startsWith('outbox:')).sort()).toEqual(records.map((r) => KEY.outbox(r.clientId)).sort());
     expect(await vault.status()).toMatchObject({ state: 'wiped', wipeReason: 'lockout' });
     // Even the right passphrase no longer opens the tablet: recovery goes through the server.
     expect(await vault.unlock(PASSPHRASE)).toMatchObject({ ok: false, code: 'wiped' });
     expect(await readOne(KEY.packet(p.workOrder.id))).toBeUndefined();
-    expect(await readOne(KEY.bench(coreId))).toBeUndefined();
   });
 
   it('refuses a vault record whose wrapped key was changed, without counting it as a wrong passphrase', async () => {
@@ -132,6 +132,29 @@ describe('recovering finished work through the server', () => {
     expect(await vault.status()).toMatchObject({ state: 'wiped', wipeReason: 'forgotten' });
     expect(await vault.recoverWithServer('fresh tray of pins', { iterations: TEST_ITERATIONS })).toEqual({ ok: true });
     expect(await outbox.count()).toEqual({ waiting: 2, flagged: 0 });
+  });
+
+  it('brings a half-built core back after a forgotten passphrase, through the sign-out that recovery needs', async () => {
+    // the issue: "Forgot the passphrase?" must not silently discard a half-built core
+    const { coreId } = await morningsWork();
+    vault.lock();
+    expect(await bench.progressSummary()).toEqual({ kept: 1, lost: 0, workOrders: 1, packets: 1 });
+    await vault.forgotPassphrase();
+    await vault.wipeLocal(); // the sign-out that sends the technician to a fresh online sign-in
+    expect(await bench.progressSummary()).toEqual({ kept: 1, lost: 0, workOrders: 1, packets: 0 });
+    expect(await vault.recoverWithServer('fresh tray of pins', { iterations: TEST_ITERATIONS })).toEqual({ ok: true });
+    expect(await bench.getProgress(coreId)).toMatchObject({ coreId, step: 3 });
+  });
+
+  it('still drops Bench progress on an ordinary sign-out and on a revocation', async () => {
+    // README threat model: sign-out wipes what the tablet holds; a revoked tablet is no longer trusted
+    const { coreId } = await morningsWork();
+    await vault.wipeLocal();
+    expect(await readOne(KEY.bench(coreId))).toBeUndefined();
+    await vault.unlock(PASSPHRASE);
+    await bench.saveProgress(coreId, progress(coreId, 'wo-1'));
+    await vault.revoke();
+    expect(await readOne(KEY.bench(coreId))).toBeUndefined();
   });
 
   it('sends the bearer token of the fresh sign-in with the escrow request', async () => {

@@ -1,10 +1,11 @@
 /**
  * Owns the tablet's vault: setting up a passphrase, unlocking offline, counting wrong
  * attempts, and wiping packets (never the outbox) after a lockout, a forgotten passphrase,
- * a revocation or a sign-out. Two data keys live behind it: the packet key (packets and
- * Bench progress) and the outbox key (finished work). The outbox key is wrapped twice,
+ * a revocation or a sign-out. Two data keys live behind it: the packet key (packets) and
+ * the outbox key (finished work and Bench progress). The outbox key is wrapped twice,
  * under the passphrase and under the device's escrow key kept by the server, so finished
- * work survives a lost passphrase: a fresh online sign-in fetches the escrow key again.
+ * work and half-built cores survive a lost passphrase: a fresh online sign-in fetches the
+ * escrow key again.
  */
 import { ApiError } from '@/api/http';
 import { fetchEscrow } from '@/api/devices';
@@ -13,6 +14,7 @@ import { KEY, commit, keysWithPrefix, readOne } from './db';
 import { IntegrityError } from './errors';
 import { dropKeys, holdKeys, isUnlocked } from './keyring';
 import { lockManager } from './locks';
+import { unescrowedKeys } from './bench';
 import { checkPassphrase } from './passphrase';
 import { AAD, up, type VaultRecord, type WipeReason } from './vaultRecord';
 
@@ -114,6 +116,11 @@ async function localDataKeys(): Promise<string[]> {
   return [...(await keysWithPrefix('packet:')), ...(await keysWithPrefix('bench:'))];
 }
 
+/** What a recoverable wipe removes: packets and the progress the escrow key cannot open. */
+async function unrecoverableKeys(): Promise<string[]> {
+  return [...(await keysWithPrefix('packet:')), ...(await unescrowedKeys())];
+}
+
 export function setup(passphrase: string, who: Who, opts: KdfOptions = {}): Promise<VaultResult> {
   return exclusive(async () => {
     const policy = checkPassphrase(passphrase);
@@ -133,11 +140,14 @@ export function setup(passphrase: string, who: Who, opts: KdfOptions = {}): Prom
   });
 }
 
-/** Packets and Bench progress go, with the packet key; the outbox and its wrappings stay. */
+/**
+ * Packets go, with the packet key; the outbox and its wrappings stay. Escrowed Bench
+ * progress stays too, except on revocation: the tablet is no longer trusted with it.
+ */
 async function wipe(record: VaultRecord, reason: WipeReason): Promise<void> {
   dropKeys();
   const next: VaultRecord = { ...record, wrappedPacketKey: null, wiped: { reason, at: new Date().toISOString() } };
-  await commit([[KEY.vault, next]], await localDataKeys());
+  await commit([[KEY.vault, next]], reason === 'revoked' ? await localDataKeys() : await unrecoverableKeys());
 }
 
 export function unlock(passphrase: string): Promise<VaultResult> {
@@ -194,17 +204,24 @@ export function revoke(): Promise<void> {
   });
 }
 
-/** Sign-out: packets and Bench progress go; the passphrase, the keys and the outbox stay. */
+/**
+ * Sign-out: packets and Bench progress go; the passphrase, the keys and the outbox stay.
+ * While the vault waits for recovery (a forgotten passphrase, a lockout), escrowed progress
+ * stays: that sign-out is the way to the recovery, not a choice to drop the work.
+ */
 export function wipeLocal(): Promise<void> {
   return exclusive(async () => {
     dropKeys();
-    await commit([], await localDataKeys());
+    const { record } = await load();
+    const recovering = record?.wiped && record.wiped.reason !== 'revoked';
+    await commit([], recovering ? await unrecoverableKeys() : await localDataKeys());
   });
 }
 
 /**
  * After a fresh online sign-in: fetch the escrow key, open the outbox key with it, and
- * set a new passphrase. Packets sealed under the old packet key are wiped; the outbox stays.
+ * set a new passphrase. Packets sealed under the old packet key are wiped; the outbox and
+ * escrowed Bench progress stay (a packet kept again brings the half-built core back).
  */
 export function recoverWithServer(newPassphrase: string, opts: KdfOptions = {}): Promise<VaultResult> {
   return exclusive(async () => {
@@ -227,7 +244,7 @@ export function recoverWithServer(newPassphrase: string, opts: KdfOptions = {}):
     const sealed = await sealUnderPassphrase(newPassphrase, outboxRaw, opts.iterations ?? PBKDF2_ITERATIONS);
     outboxRaw.fill(0);
     const next: VaultRecord = { ...record, ...sealed.record, failedAttempts: 0, wiped: null };
-    await commit([[KEY.vault, next]], await localDataKeys());
+    await commit([[KEY.vault, next]], await unrecoverableKeys());
     holdKeys(sealed.keys);
     return { ok: true };
   });

@@ -8,11 +8,15 @@ import { computed, readonly, ref } from 'vue';
 import { onProblem, packets, sync, vault, type Problem, type VaultResult, type VaultStatus } from '@/offline';
 import { deviceId, useSessionStore } from './session';
 
+/** Why the vault is locked, for the unlock screen; null: the app was (re)started, so the keys left memory. */
+export type LockReason = { kind: 'idle'; minutes: number } | { kind: 'signed-in' } | null;
+
 export const useVaultStore = defineStore('vault', () => {
   const session = useSessionStore();
   const status = ref<VaultStatus | null>(null);
   const busy = ref(false);
   const damaged = ref<Problem[]>([]);
+  const lockReason = ref<LockReason>(null);
 
   const state = computed(() => status.value?.state ?? 'locked');
   const locked = computed(() => state.value !== 'unlocked');
@@ -70,8 +74,10 @@ export const useVaultStore = defineStore('vault', () => {
     });
   }
 
-  function lock(): void {
+  /** The idle lock passes how many idle minutes it waited, so the unlock screen can say so. */
+  function lock(idleMinutes?: number): void {
     vault.lock();
+    lockReason.value = idleMinutes === undefined ? null : { kind: 'idle', minutes: idleMinutes };
     void refresh();
   }
 
@@ -104,6 +110,7 @@ export const useVaultStore = defineStore('vault', () => {
   // Sign-out wipes packets and Bench progress; the outbox and the passphrase stay.
   session.$onAction(({ name, after }) => {
     if (name === 'signOut') after(() => vault.wipeLocal().then(refresh));
+    if (name === 'signIn') after(() => void (lockReason.value = { kind: 'signed-in' }));
   });
   onProblem((problem) => {
     if (problem.kind === 'damaged' && !damaged.value.some((p) => p.key === problem.key)) damaged.value.push(problem);
@@ -111,6 +118,7 @@ export const useVaultStore = defineStore('vault', () => {
 
   return {
     status: readonly(status),
+    lockReason: readonly(lockReason),
     state,
     locked,
     needsSetup,
