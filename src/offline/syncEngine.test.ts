@@ -92,6 +92,32 @@ describe('what leaves the outbox', () => {
   });
 });
 
+describe('a core finished online', () => {
+  it('is sent at once by a nudge, not at the next one-minute period', async () => {
+    // common practice (a write-behind queue flushes on a new write when the link is up); reliability.md S4
+    const e = engine();
+    e.start();
+    await vi.waitFor(() => expect(timers).toHaveLength(1)); // the first, empty pass scheduled the period
+    const [a] = await finish(1);
+    expect(e.nudge()).toBe(true); // no timer is fired by the test: only the nudge can send
+    await vi.waitFor(async () => expect(await outbox.count()).toEqual({ waiting: 0, flagged: 0 }));
+    expect(server.syncRequests.map((r) => r.map((x) => x.clientId))).toEqual([[a!.clientId]]);
+  });
+
+  it('waits out a failure’s backoff instead of hammering the server', async () => {
+    // AWS Architecture Blog "Exponential backoff and jitter": a new write does not reset the backoff
+    await finish(1);
+    server.queue.push({ status: 500, body: { error: { code: 'internal', message: 'Something went wrong on the server' } } });
+    const e = engine();
+    e.start();
+    await vi.waitFor(() => expect(e.status().nextRetryAt).not.toBeNull());
+    const requestsBefore = server.syncRequests.length;
+    await finish(1);
+    expect(e.nudge()).toBe(false);
+    expect(server.syncRequests.length).toBe(requestsBefore);
+  });
+});
+
 describe('S7: server errors', () => {
   it('keeps everything on a 500 and backs off 2 s, 4 s, 8 s…, capped at 5 minutes', async () => {
     // reliability.md S7; Workbox background-sync issue #2599; AWS Architecture Blog "Exponential backoff and jitter"

@@ -69,6 +69,7 @@ export function createSyncEngine(deps: SyncDeps) {
   const listeners = new Set<(s: Readonly<SyncState>) => void>();
   const emit = () => listeners.forEach((fn) => fn({ ...state }));
   let failures = 0;
+  let nudgeQueued = false;
 
   async function refresh(): Promise<Readonly<SyncState>> {
     const counts = await outbox.count();
@@ -172,6 +173,8 @@ export function createSyncEngine(deps: SyncDeps) {
   /** One pass now, from any tab; waits while another tab's pass runs. */
   async function syncNow(): Promise<PassResult> {
     const result = await locks.request('corewright-sync-pass', {}, async () => {
+      // This pass reads the outbox from here on, so a later write needs a pass of its own.
+      nudgeQueued = false;
       state.syncing = true;
       emit();
       try {
@@ -275,6 +278,21 @@ export function createSyncEngine(deps: SyncDeps) {
     if (started && isUnlocked()) runForLeader();
   }
 
+  /**
+   * New work just reached the outbox: send it now rather than at the next period, unless the
+   * browser is offline, the session or tablet needs attention, or the last pass failed (its
+   * backoff decides when to try again). Nudges coalesce: one pass waits at most.
+   */
+  function nudge(): boolean {
+    if (state.needsSignIn || state.revoked || failures > 0) return false;
+    if (typeof navigator !== 'undefined' && navigator.onLine === false) return false;
+    if (!nudgeQueued) {
+      nudgeQueued = true;
+      void syncNow();
+    }
+    return true;
+  }
+
   async function retry(clientId: string) {
     const result = await outbox.unflag(clientId);
     if (result.failed.some((f) => f.reason === 'quota')) state.quotaError = QUOTA_MESSAGE;
@@ -289,5 +307,5 @@ export function createSyncEngine(deps: SyncDeps) {
     return () => listeners.delete(fn);
   }
 
-  return { syncNow, start, stop, refresh, signedIn, reinstated, retry, subscribe, status: (): Readonly<SyncState> => ({ ...state }), clearQuotaError: () => ((state.quotaError = null), emit()) };
+  return { syncNow, nudge, start, stop, refresh, signedIn, reinstated, retry, subscribe, status: (): Readonly<SyncState> => ({ ...state }), clearQuotaError: () => ((state.quotaError = null), emit()) };
 }
