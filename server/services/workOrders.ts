@@ -6,6 +6,7 @@
 import type { Knex } from 'knex';
 import { hasErrors, keyOperates, pinCore, trayFor, type CorePinning } from '../../shared/keying';
 import type { KeyCheckItem, Packet } from '../../shared/schemas/packet';
+import { compareSymbols } from '../../shared/keyLevels';
 import type { WorkOrderInput, WorkOrderUpdate } from '../../shared/schemas/records';
 import { badRequest, notFound } from '../errors';
 import { chainOf, loadSystem, type LoadedSystem, type SystemKey } from './keySystems';
@@ -154,15 +155,37 @@ function keyCheckPlan(system: LoadedSystem, chain: SystemKey[], pinning: CorePin
     expect: 'turns',
   }));
   plan.push({ role: 'control', symbol: 'CONTROL', level: null, expect: 'releases' });
-  // One key of the system that must not turn this core: a sibling change key first.
+  return [...plan, ...mustNotTurnKeys(system, chain, pinning)];
+}
+
+/**
+ * Keys of the system that must not turn this core, each with why it was chosen: a change
+ * key under the same master (the neighbour's door), and, where the system has one, a key
+ * of another master (another area), its master key first. The engine's keyOperates decides
+ * that the key really must not turn; symbols in natural order so the choice is stable.
+ */
+export function mustNotTurnKeys(system: LoadedSystem, chain: SystemKey[], pinning: CorePinning): KeyCheckItem[] {
   const inChain = new Set(chain.map((k) => k.id));
-  const change = ordered[0];
-  const candidates = system.keys
-    .filter((k) => !inChain.has(k.id) && k.status === 'active')
-    .sort((a, b) => Number(b.parentId === change?.parentId) - Number(a.parentId === change?.parentId) || levelRank(a.level) - levelRank(b.level) || a.symbol.localeCompare(b.symbol));
-  const outsider = candidates.find((k) => !keyOperates(pinning, system.profile, k.bitting).plug);
-  if (outsider) plan.push({ role: 'must-not-turn', symbol: outsider.symbol, level: outsider.level, expect: 'none' });
-  return plan;
+  const byId = new Map(system.keys.map((k) => [k.id, k]));
+  const change = chain.find((k) => k.level === 'change' && !k.crossKeyed) ?? chain.find((k) => k.level === 'change');
+  const ownMaster = chain.find((k) => k.level === 'master') ?? (change?.parentId ? byId.get(change.parentId) : undefined);
+  const free = system.keys
+    .filter((k) => !inChain.has(k.id) && k.status === 'active' && !keyOperates(pinning, system.profile, k.bitting).plug)
+    .sort((a, b) => compareSymbols(a.symbol, b.symbol));
+  const masterOf = (k: SystemKey): SystemKey | undefined => (k.level === 'master' ? k : k.parentId ? byId.get(k.parentId) : undefined);
+  const out: KeyCheckItem[] = [];
+  const sibling = free.find((k) => k.level === 'change' && change && k.parentId === change.parentId);
+  const own = ownMaster?.symbol ?? null;
+  if (sibling) out.push({ role: 'must-not-turn', symbol: sibling.symbol, level: sibling.level, expect: 'none', why: { relation: 'sibling', ownMaster: own, otherMaster: null } });
+  const isOtherArea = (k: SystemKey) => {
+    const m = masterOf(k);
+    return !!m && m.level === 'master' && m.id !== ownMaster?.id;
+  };
+  const other = free.find((k) => k.level === 'master' && isOtherArea(k)) ?? free.find((k) => k.level === 'change' && isOtherArea(k));
+  if (other) out.push({ role: 'must-not-turn', symbol: other.symbol, level: other.level, expect: 'none', why: { relation: 'other-master', ownMaster: own, otherMaster: masterOf(other)?.symbol ?? null } });
+  // A system with neither (one master, one door): still one key that must not turn, when there is any.
+  if (!out.length && free[0]) out.push({ role: 'must-not-turn', symbol: free[0].symbol, level: free[0].level, expect: 'none' });
+  return out;
 }
 
 export async function buildPacket(db: Knex, sealer: Sealer, workOrderId: string): Promise<Packet> {

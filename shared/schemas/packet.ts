@@ -10,12 +10,27 @@ import { CoreState, KeyLevel, WorkOrderPurpose, WorkOrderStatus } from './record
 export const KeyCheckRole = z.enum(['change', 'master', 'cross', 'control', 'must-not-turn']);
 export type KeyCheckRole = z.infer<typeof KeyCheckRole>;
 
+/**
+ * Why a must-not-turn key was chosen: a change key under the same master as this core's
+ * change key (a neighbour's door), or a key of another master (another area). Optional, so
+ * packets and stored Bench sessions from before it still parse.
+ */
+export const MustNotTurnWhy = z.object({
+  relation: z.enum(['sibling', 'other-master']),
+  /** The master this core's change key sits under. */
+  ownMaster: z.string().nullable(),
+  /** other-master: the master the chosen key belongs to (itself, when it is a master). */
+  otherMaster: z.string().nullable(),
+});
+export type MustNotTurnWhy = z.infer<typeof MustNotTurnWhy>;
+
 export const KeyCheckItem = z.object({
   role: KeyCheckRole,
   symbol: z.string(),
   level: KeyLevel.nullable(),
   /** turns: the plug turns; releases: the control key turns about 15 degrees and frees the core; none: must not turn. */
   expect: z.enum(['turns', 'releases', 'none']),
+  why: MustNotTurnWhy.optional(),
 });
 export type KeyCheckItem = z.infer<typeof KeyCheckItem>;
 

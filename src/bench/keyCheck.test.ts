@@ -1,13 +1,13 @@
 import { describe, expect, test } from 'vitest';
 import type { KeyCheckItem } from '@shared/schemas/packet';
-import { expectWords, failureChoicesFor, failureNote, keyCheckOrder, roleName } from './keyCheck';
+import { expectWords, failureChoicesFor, failureNote, keyCheckOrder, mustNotTurnWhy, roleName } from './keyCheck';
 import { plan } from './testing/fixtures';
 
 describe('Key check plan', () => {
   // keying-primer bench procedure step 4 (change, masters, control, must-not-turn).
   test('ordered change first, masters by level, control, then the key that must not turn', () => {
     expect(keyCheckOrder(plan).map((k) => k.role)).toEqual(['change', 'master', 'master', 'control', 'must-not-turn']);
-    expect(keyCheckOrder(plan).map(roleName)).toEqual(['Change key', 'Master key', 'Grand master', 'Control key', 'Key that must not work']);
+    expect(keyCheckOrder(plan).map(roleName)).toEqual(['Change key', 'Master', 'Grand master', 'Control key', 'Key that must not work']);
     expect(plan[0]?.role).toBe('must-not-turn');
   });
 
@@ -28,5 +28,19 @@ describe('Key check plan', () => {
     expect(failureNote('stiff')).toBe('Turned but stiff');
     expect(failureNote('other', '  pin stuck out of chamber 2 ')).toBe('Something else: pin stuck out of chamber 2');
     expect(failureNote('other', 'x'.repeat(900))).toHaveLength(500);
+  });
+});
+
+describe('must-not-turn keys say which and why', () => {
+  // keying-primer bench procedure step 4; the issue: "says which and why on the Key check card"
+  test('a sibling change key: the neighbouring door under the same master', () => {
+    expect(mustNotTurnWhy({ role: 'must-not-turn', symbol: 'AA3', level: 'change', expect: 'none', why: { relation: 'sibling', ownMaster: 'AA', otherMaster: null } })).toMatch(/change key under the same master AA: the neighbouring door/);
+  });
+  test('the master of another area', () => {
+    expect(mustNotTurnWhy({ role: 'must-not-turn', symbol: 'AB', level: 'master', expect: 'none', why: { relation: 'other-master', ownMaster: 'AA', otherMaster: 'AB' } })).toMatch(/master of another area AB.*under AA/);
+  });
+  test('nothing for keys that must turn, or a plan from before the reason existed', () => {
+    expect(mustNotTurnWhy({ role: 'change', symbol: 'AA1', level: 'change', expect: 'turns' })).toBeNull();
+    expect(mustNotTurnWhy({ role: 'must-not-turn', symbol: 'AA3', level: 'change', expect: 'none' })).toBeNull();
   });
 });

@@ -4,6 +4,7 @@
  */
 import type { KeyCheckItem, KeyCheckRole } from '@shared/schemas/packet';
 import type { KeyLevel } from '@shared/schemas/records';
+import { CONTROL_KEY_LABEL, KEY_LEVEL_LABELS } from '@shared/keyLevels';
 
 // Keys that must turn come first, lowest level up, so a fault shows on the simplest key;
 // the control key next; the key that must not turn last (keying-primer bench procedure).
@@ -17,18 +18,28 @@ export function keyCheckOrder(plan: readonly KeyCheckItem[]): KeyCheckItem[] {
 }
 
 export const roleWords: Record<KeyCheckRole, string> = {
-  change: 'Change key',
-  cross: 'Cross-keyed change key',
-  master: 'Master key',
-  control: 'Control key',
+  change: KEY_LEVEL_LABELS.change,
+  cross: `Cross-keyed ${KEY_LEVEL_LABELS.change.toLowerCase()}`,
+  master: KEY_LEVEL_LABELS.master,
+  control: CONTROL_KEY_LABEL,
   'must-not-turn': 'Key that must not work',
 };
 
-const levelWords: Record<KeyLevel, string> = { change: 'Change key', master: 'Master key', gm: 'Grand master', ggm: 'Great-grand master' };
-
-/** "Grand master" rather than "Master key" when the packet says the level. */
+/** The level's one name (shared/keyLevels.ts) when the packet says it: "Grand master", "Master". */
 export function roleName(item: KeyCheckItem): string {
-  return item.role === 'master' && item.level ? levelWords[item.level] : roleWords[item.role];
+  return item.role === 'master' && item.level ? KEY_LEVEL_LABELS[item.level] : roleWords[item.role];
+}
+
+/** Which key this is and why it must not turn, from the plan's `why`; null for a plan without one. */
+export function mustNotTurnWhy(item: KeyCheckItem): string | null {
+  const why = item.why;
+  if (item.role !== 'must-not-turn' || !why) return null;
+  const level = item.level ? KEY_LEVEL_LABELS[item.level].toLowerCase() : 'key';
+  const own = why.ownMaster ? ` ${why.ownMaster}` : '';
+  if (why.relation === 'sibling') return `A ${level} under the same master${own}: the neighbouring door’s key. If it turns, one door’s key opens another.`;
+  const other = why.otherMaster ? ` ${why.otherMaster}` : '';
+  if (item.level === 'master') return `The master of another area${other}: it must open only its own area’s doors, not this door under${own || ' another master'}.`;
+  return `A ${level} under another master${other}: if it turns, keys cross from one area into another.`;
 }
 
 /** What must happen, in the words a locksmith uses at the bench. */
