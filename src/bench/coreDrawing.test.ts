@@ -1,6 +1,6 @@
 import { describe, expect, test } from 'vitest';
 import { pinCore } from '@shared/keying';
-import { UNIT, coreDrawing, labelY } from './coreDrawing';
+import { LABEL_FONT, TIP, UNIT, coreDrawing, labelY } from './coreDrawing';
 import { next, startSession } from './session';
 import { partStatus } from './sessionView';
 import { loadingSteps } from './steps';
@@ -42,13 +42,32 @@ describe('Core view geometry', () => {
 describe('Core view labels', () => {
   // Our own legibility rule: no shear line runs through a part's digits (12 px glyphs).
   test('a label moves off a line that would cross it, and stays centred otherwise', () => {
-    expect(labelY(100, 60, [])).toBe(136);
-    expect(labelY(100, 60, [130])).toBe(147);
+    expect(labelY(100, 60, [])).toBe(137.5);
+    expect(labelY(100, 60, [130])).toBe(150);
+    expect(labelY(100, 50, [126])).toBe(146);
     expect(labelY(100, 40, [124])).toBe(119);
-    expect(labelY(100, 40, [132])).toBe(126);
+    expect(labelY(100, 40, [132])).toBe(127.5);
     const d = coreDrawing(loadingSteps(pinCore(sfic6, mixedKeys), sfic6), sfic6);
-    for (const p of d.parts.filter((x) => x.h >= 22)) {
-      for (const line of [d.lines.operatingY, d.lines.controlY]) expect(line < p.labelY - 12 - 1 || line > p.labelY + 1).toBe(true);
+    for (const p of d.parts.filter((x) => x.h + x.tip >= 24)) {
+      for (const line of [d.lines.operatingY, d.lines.controlY]) expect(line < p.labelY - 15 - 1 || line > p.labelY + 1).toBe(true);
     }
+  });
+
+  // the issue: a #0 bottom pin is a real part and must be seen, labelled, and pointed at
+  test('a size-0 bottom pin has a visible body (its tip) with room for its label', () => {
+    const plan = loadingSteps(pinCore(sfic6, primerKeys), sfic6).map((s) => (s.id === 'c1-0-bottom' ? { ...s, size: 0 } : s));
+    const d = coreDrawing(plan, sfic6);
+    const zero = d.parts.find((p) => p.id === 'c1-0-bottom')!;
+    expect(zero.h).toBe(0);
+    expect(zero.h + zero.tip).toBeGreaterThanOrEqual(24);
+    expect(zero.y + zero.h + zero.tip).toBe(d.floorY);
+    // every bottom pin has the same tip, so stack heights still compare by units
+    expect(new Set(d.parts.filter((p) => p.kind === 'bottom').map((p) => p.tip))).toEqual(new Set([TIP]));
+  });
+
+  test('the drawing is narrow enough that labels stay 12 px at a 1280x800 tablet (about 440 px wide there)', () => {
+    // measured: the Core view column is about 440 px wide at 1280x800 landscape with the menu shown
+    const d = coreDrawing(loadingSteps(pinCore(sfic6, mixedKeys), sfic6), { ...sfic6, chambers: 7 });
+    expect((LABEL_FONT * 440) / d.width).toBeGreaterThanOrEqual(12);
   });
 });

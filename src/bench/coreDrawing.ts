@@ -12,15 +12,21 @@ import type { PartStatus } from './sessionView';
 import { partName, type LoadingStep, type PartStepKind } from './steps';
 
 export const UNIT = 14;
-const COL = 60;
-const GAP = 34;
+// Narrow gaps and a short right margin keep the drawing wide on screen, so labels drawn at
+// LABEL_FONT stay at least 12 px on a 1280x800 tablet (the legend is HTML, under the SVG).
+const COL = 64;
+const GAP = 24;
 const LEFT = 24;
-const RIGHT = 190;
+const RIGHT = 118;
 const TOP = 58;
 const SPRING_UNITS = 4.5;
 const CAP_UNITS = 1.2;
-// Room under the stacks for the end labels and up to four legend rows.
-const FOOT = 170;
+/** The tip of every bottom pin below the zero line, the same for all, so a size-0 pin has a body too. */
+export const TIP = 24;
+// Room under the stacks for the end labels.
+const FOOT = 48;
+/** Part labels, in drawing units (CoreView.vue uses the same figure). */
+export const LABEL_FONT = 21;
 
 export interface DrawnPart {
   id: string;
@@ -35,7 +41,10 @@ export interface DrawnPart {
   x: number;
   y: number;
   w: number;
+  /** Height in the stack: size × UNIT. */
   h: number;
+  /** Drawn below the zero line as well (bottom pins: TIP), so every part has a visible body. */
+  tip: number;
   status: PartStatus;
 }
 
@@ -51,7 +60,10 @@ export interface DrawnChamber {
 export interface CoreDrawing {
   width: number;
   height: number;
+  /** The zero line: where a stack's units start. */
   baseY: number;
+  /** The floor of the chambers, under the bottom pins' tips. */
+  floorY: number;
   parts: DrawnPart[];
   chambers: DrawnChamber[];
   lines: { x1: number; x2: number; operatingY: number; controlY: number };
@@ -86,12 +98,13 @@ export function coreDrawing(plan: readonly LoadingStep[], profile: Profile, stat
     let filled = 0;
     for (const step of plan.filter((s) => s.chamber === c)) {
       const size = step.size ?? 0;
-      // A size-0 part is a real part: draw a sliver so it can be seen and pointed at.
-      const h = Math.max(size * UNIT, 5);
+      const tip = step.kind === 'bottom' ? TIP : 0;
+      // A size-0 part is a real part: a bottom pin shows its tip; any other gets a sliver.
+      const h = tip ? size * UNIT : Math.max(size * UNIT, 5);
       const y = baseY - filled * UNIT - h;
       parts.push({
         id: step.id, chamber: c, kind: step.kind as PartStepKind, level: step.kind === 'master' ? (step.ofKind?.n ?? 1) : null,
-        short: shortOf(step), size, labelY: labelY(y, h, [operatingY, controlY]), x, y, w: COL, h, status: of(step.id),
+        short: shortOf(step), size, labelY: labelY(y, h + tip, [operatingY, controlY]), x, y, w: COL, h, tip, status: of(step.id),
       });
       filled += size;
     }
@@ -106,14 +119,15 @@ export function coreDrawing(plan: readonly LoadingStep[], profile: Profile, stat
   const width = x2 + RIGHT;
   const back = profile.chamberOneAt === 'back';
   return {
-    width, height: baseY + FOOT, baseY, parts, chambers,
+    width, height: baseY + TIP + FOOT, baseY, floorY: baseY + TIP, parts, chambers,
     lines: { x1: LEFT - 12, x2, operatingY, controlY },
     ends: { left: back ? 'Back' : 'Front', right: back ? 'Front' : 'Back' },
     summary: summaryOf(plan, profile, status),
   };
 }
 
-const GLYPH = 12;
+/** Digit height at LABEL_FONT, in drawing units. */
+const GLYPH = 15;
 
 /** Centred in the part unless a line crosses the digits; then just below or above the line. */
 export function labelY(y: number, h: number, lines: number[]): number {
