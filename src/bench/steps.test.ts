@@ -1,6 +1,6 @@
 import { describe, expect, test } from 'vitest';
 import { pinCore, type Profile } from '@shared/keying';
-import { benchBlocker, chamberOneWords, loadingOrder, loadingSteps, partName } from './steps';
+import { benchBlocker, chamberOneWords, loadingOrder, loadingSteps, partName, stepNotes } from './steps';
 import { kit6, mixedKeys, primerKeys, sfic6 } from './testing/fixtures';
 
 describe('loadingSteps', () => {
@@ -65,5 +65,24 @@ describe('loadingSteps', () => {
     const broken = pinCore(sfic6, { operating: ['12'], control: '444444' });
     expect(benchBlocker(broken, sfic6)).toMatch(/error/);
     expect(() => loadingSteps(broken, sfic6)).toThrow(/error/);
+  });
+});
+
+describe('stepNotes', () => {
+  // the issue: a #0 bottom pin never reads "Stack after this part: 0 units"; a two-wafer build-up says which wafer first
+  test('a size-0 part says it adds no height instead of "0 units"', () => {
+    const plan = loadingSteps(pinCore(sfic6, mixedKeys), sfic6);
+    const zero = { ...plan.find((s) => s.kind === 'bottom')!, size: 0, stackHeightAfter: 0 };
+    const notes = stepNotes(zero, plan);
+    expect(notes.join(' ')).not.toMatch(/0 units/);
+    expect(notes[0]).toMatch(/size-0 bottom pin adds no height/);
+  });
+
+  test('a two-wafer build-up names the wafer to stack first, by size (common practice: the larger, lower wafer first)', () => {
+    const plan = loadingSteps(pinCore(sfic6, mixedKeys), sfic6);
+    const first = plan.find((s) => s.kind === 'buildUp' && s.ofKind?.of === 2)!;
+    const pair = plan.filter((s) => s.chamber === first.chamber && s.kind === 'buildUp');
+    expect(stepNotes(first, plan)).toContain(`Two wafers make this build-up: stack the ${pair[0]!.size} first, then the ${pair[1]!.size} on top.`);
+    expect(stepNotes(first, plan)[0]).toBe(`Stack after this part: ${first.stackHeightAfter} units`);
   });
 });

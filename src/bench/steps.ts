@@ -106,3 +106,19 @@ export function loadingSteps(pinning: CorePinning, profile: Profile): LoadingSte
 export function partName(step: LoadingStep): string {
   return step.ofKind ? `${step.partLabel} ${step.ofKind.n} of ${step.ofKind.of}` : step.partLabel;
 }
+
+/**
+ * The small print under a part: the stack height (a size-0 part says it adds no height
+ * instead of "0 units"), and for a two-wafer build-up which wafer goes first, by size.
+ */
+export function stepNotes(step: LoadingStep, plan: readonly LoadingStep[]): string[] {
+  if (step.chamber === null || step.size === null) return [];
+  const notes: string[] = [];
+  if (step.size === 0) notes.push(`A size-0 ${step.partLabel.toLowerCase()} adds no height: put it in all the same.`);
+  else notes.push(`Stack after this part: ${step.stackHeightAfter} units`);
+  if (step.kind === 'buildUp' && step.ofKind?.of === 2) {
+    const pair = plan.filter((s) => s.chamber === step.chamber && s.kind === 'buildUp');
+    if (pair.length === 2) notes.push(`Two wafers make this build-up: stack the ${pair[0]!.size} first, then the ${pair[1]!.size} on top.`);
+  }
+  return notes;
+}

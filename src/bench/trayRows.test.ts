@@ -22,9 +22,9 @@ describe('Tray rows', () => {
     for (const r of rows) expect(r.perChamber.reduce((a, b) => a + b, 0)).toBe(r.total);
     expect(rows.find((r) => r.kind === 'master' && r.size === 2)?.perChamber).toEqual([1, 0, 0, 0, 0, 1]);
     expect(tray.twoWaferBuildUps.map(twoWaferWords)).toEqual([
-      'Chamber 1: build-up 13 = wafer 9 + wafer 4, ×1 · seam at the control line of depth 1',
-      'Chamber 3: build-up 15 = wafer 9 + wafer 6, ×1 · seam at the control line of depth 3',
-      'Chamber 6: build-up 15 = wafer 9 + wafer 6, ×1 · seam at the control line of depth 1',
+      'Chamber 1, build-up 13: stack the 9 first, then the 4 on top (×1) · seam at the control line of depth 1',
+      'Chamber 3, build-up 15: stack the 9 first, then the 6 on top (×1) · seam at the control line of depth 3',
+      'Chamber 6, build-up 15: stack the 9 first, then the 6 on top (×1) · seam at the control line of depth 1',
     ]);
   });
 });

@@ -34,11 +34,11 @@ export function trayRows(tray: Tray): TrayRow[] {
 }
 
 /**
- * "Chamber 3: build-up 14 = wafer 9 + wafer 5, ×2 · seam at the control line of depth 3"
- * (lower wafer first, as loaded). The seam is one more break: a key cut to that depth
- * there lines up the control shear line, so the words say which depth.
+ * "Chamber 3, build-up 14: stack the 9 first, then the 5 on top (×2) · seam at the control
+ * line of depth 3": which wafer goes lower, by size. The seam is one more break: a key cut
+ * to that depth there lines up the control shear line, so the words say which depth.
  */
 export function twoWaferWords(b: TwoWaferBuildUp): string {
   const seam = b.seamReleases?.length ? ` · seam at the control line of depth ${b.seamReleases.join(', ')}` : '';
-  return `Chamber ${b.chamber}: build-up ${b.total} = wafer ${b.wafers[0]} + wafer ${b.wafers[1]}, ×${b.count}${seam}`;
+  return `Chamber ${b.chamber}, build-up ${b.total}: stack the ${b.wafers[0]} first, then the ${b.wafers[1]} on top (×${b.count})${seam}`;
 }
