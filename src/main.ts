@@ -1,6 +1,6 @@
 import { createApp } from 'vue';
 import { createPinia } from 'pinia';
-import { Dialog, Notify, Quasar } from 'quasar';
+import { Notify, Quasar } from 'quasar';
 import '@quasar/extras/roboto-font/roboto-font.css';
 import '@quasar/extras/material-icons/material-icons.css';
 import '@fontsource/roboto-mono/400.css';
@@ -9,9 +9,12 @@ import 'quasar/src/css/index.sass';
 import './css/app.css';
 import App from './App.vue';
 import { createAppRouter } from './router';
+import { installLazyDialog } from './plugins/lazyDialog';
 
 const app = createApp(App);
 app.use(createPinia());
-app.use(Quasar, { plugins: { Notify, Dialog }, config: { notify: { position: 'top', timeout: 4000 } } });
+app.use(Quasar, { plugins: { Notify }, config: { notify: { position: 'top', timeout: 4000 } } });
+// $q.dialog() fetches Quasar's Dialog plugin on first use: it is not needed before the Bench is usable.
+installLazyDialog(app);
 app.use(createAppRouter());
 app.mount('#app');

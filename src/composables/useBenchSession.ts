@@ -14,6 +14,12 @@ import { benchBlocker } from '@/bench/steps';
 import { bench, recordFinished, type WriteResult } from '@/offline';
 import { progressOf, type CoreProgress, type CoreStatus } from '@/stores/bench';
 
+/** Resolves after the browser has drawn the next frame (a timer queued from inside requestAnimationFrame). */
+function afterPaint(): Promise<void> {
+  if (typeof requestAnimationFrame === 'undefined') return Promise.resolve();
+  return new Promise((resolve) => requestAnimationFrame(() => setTimeout(resolve, 0)));
+}
+
 export function useBenchSession() {
   const session = shallowRef<S.BenchSession | null>(null);
   const progress = ref<CoreProgress | null>(null);
@@ -48,20 +54,22 @@ export function useBenchSession() {
     if (!current || !packet || !core) return false;
     const nextState = move(current, new Date());
     if (nextState === current) return false;
-    const base = { coreId: core.id, workOrderId: packet.workOrder.id, updatedAt: nextState.updatedAt, session: serialise(nextState) };
+    const base = { coreId: core.id, workOrderId: packet.workOrder.id, updatedAt: nextState.updatedAt };
     if (nextState.phase === 'done') {
       await saving; // earlier saves first, so the final state is the last one written
       const clientId = crypto.randomUUID();
       const record = S.finish(nextState, { clientId, workOrderId: packet.workOrder.id });
-      const next: CoreProgress = { ...base, status: statusFor(nextState), completionId: clientId };
+      const next: CoreProgress = { ...base, session: serialise(nextState), status: statusFor(nextState), completionId: clientId };
       if (failed(await recordFinished({ coreId: core.id, progress: next }, record))) return false;
       progress.value = next;
     } else {
-      const next: CoreProgress = { ...progress.value, ...base, status: statusFor(nextState) };
+      const { session: _old, ...kept } = progress.value ?? {};
+      const next = { ...kept, ...base, status: statusFor(nextState) } as CoreProgress;
       progress.value = next;
       session.value = nextState;
       const coreId = core.id;
-      saving = saving.then(async () => failed(await bench.saveProgress(coreId, next)));
+      // The screen moves first; serialising and sealing the whole session waits for the next frame to be drawn.
+      saving = saving.then(afterPaint).then(async () => failed(await bench.saveProgress(coreId, { ...next, session: serialise(nextState) })));
       return true;
     }
     session.value = nextState;

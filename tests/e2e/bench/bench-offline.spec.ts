@@ -208,9 +208,10 @@ test('five wrong passphrases wipe the packets, but the finished core still lands
   await loadWithKeys();
   await passAll('before-cap');
   await page.keyboard.press('Space');
+  // Offline before the core is finished: online, a finished core syncs at once.
+  await ctx.setOffline(true);
   await passAll('after-cap');
   await expect(page.getByTestId('done')).toBeVisible();
-  await ctx.setOffline(true);
   await waiting(1);
   await page.reload();
   for (let i = 0; i < 5; i++) {

@@ -32,10 +32,13 @@ async function signInOnly(page: Page, email: string): Promise<void> {
   await page.getByTestId('sign-in').tap();
 }
 
+/** Sets the passphrase and waits for the Bench (deriving the key takes a while on a busy machine). */
 async function setPassphrase(page: Page, passphrase = TABLET_PASSPHRASE): Promise<void> {
   await page.getByTestId('passphrase').fill(passphrase);
   await page.getByTestId('passphrase-confirm').fill(passphrase);
   await page.getByTestId('setup').tap();
+  await expect(page.getByTestId('user-menu')).toBeVisible({ timeout: 20_000 });
+  await expect(page).toHaveURL(/^[^?]*\/bench$/);
 }
 
 test('a supervisor lands on the Overview, meets no Bench by accident, and can make this device a tablet on purpose', async ({ browser }) => {
@@ -81,14 +84,14 @@ test('a technician’s passphrase screen has a way out, and the unlock screen sa
   await shot(page, 'unlock-restarted');
   await page.getByTestId('passphrase').fill(TABLET_PASSPHRASE);
   await page.getByTestId('unlock').tap();
-  await expect(page).toHaveURL(/\/bench$/);
+  await expect(page.getByTestId('user-menu')).toBeVisible({ timeout: 20_000 });
 
   // Idle: a short idle time set the way a supervisor would set it.
   await page.evaluate(() => localStorage.setItem('cw.idleMinutes', '0.05'));
   await page.reload();
   await page.getByTestId('passphrase').fill(TABLET_PASSPHRASE);
   await page.getByTestId('unlock').tap();
-  await expect(page).toHaveURL(/\/bench$/);
+  await expect(page.getByTestId('user-menu')).toBeVisible({ timeout: 20_000 });
   await expect(page.getByTestId('unlock')).toBeVisible({ timeout: 15_000 });
   await expect(page.locator('.standalone-card')).toContainText(/Locked after 0\.05 idle minutes/);
   await page.evaluate(() => localStorage.removeItem('cw.idleMinutes'));
@@ -111,6 +114,7 @@ test('forgot the passphrase: the screen says what goes and what stays, and the h
   await core.tap();
   for (let i = 0; i < 4; i++) await page.getByTestId('next').tap();
   const where = await page.getByTestId('step-progress').textContent();
+  await page.waitForTimeout(300); // each move is saved just after it is drawn
 
   await page.reload();
   await expect(page.getByTestId('unlock-forgot')).toBeVisible();
@@ -120,6 +124,7 @@ test('forgot the passphrase: the screen says what goes and what stays, and the h
   await expect(dialog).toContainText('Kept: Bench progress on 1 half-built core');
   await shot(page, 'forgot-dialog');
   await dialog.getByRole('button', { name: 'Wipe the work orders and sign in' }).tap();
+  await expect(page.getByTestId('unlock-wiped')).toBeVisible({ timeout: 20_000 });
 
   await signInOnly(page, demo.technician);
   await expect(page.getByTestId('passphrase-confirm')).toBeVisible();

@@ -44,11 +44,16 @@ test('a technician sent to a console page is brought back to the Bench', async (
   await expect(page).toHaveURL(/\/bench/);
 });
 
-test('the admin sees every console page in the navigation', async ({ page }) => {
+test('the admin sees every console page in the navigation, and the Bench only as a choice in the user menu', async ({ page }) => {
   await signIn(page, demo.admin);
-  for (const name of ['bench.home', 'workOrders.list', 'completions.list', 'keySystems.list', 'doors.list', 'users.list']) {
+  for (const name of ['overview', 'workOrders.list', 'completions.list', 'keySystems.list', 'doors.list', 'users.list']) {
     await expect(page.getByTestId(`nav-${name}`)).toBeVisible();
   }
+  // The Bench is for a device set up as a tablet: not in an office user's navigation until chosen.
+  await expect(page.getByTestId('nav-bench.home')).toHaveCount(0);
+  await page.getByTestId('user-menu').click();
+  await expect(page.getByTestId('use-as-tablet')).toBeVisible();
+  await page.keyboard.press('Escape');
   await page.getByTestId('user-menu').click();
   await page.getByTestId('sign-out').click();
   await expect(page).toHaveURL(/\/sign-in/);

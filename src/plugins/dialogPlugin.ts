@@ -1,0 +1,2 @@
+/** Quasar's Dialog plugin on its own, so installLazyDialog can fetch it on first use. */
+export { Dialog } from 'quasar';
