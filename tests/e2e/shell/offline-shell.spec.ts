@@ -16,8 +16,9 @@ test('the technician sees the shell, then it reloads offline with its fonts and 
   await expect(page).toHaveURL(/\/bench/);
   await expect(page.getByTestId('user-name')).toContainText('Robin Tech');
   await expect(page.getByTestId('connection')).toContainText('Online');
-  // a technician's navigation holds the Bench only
-  await expect(page.getByTestId('nav-bench.home')).toBeVisible();
+  // a technician has one place, the Bench: no side menu, the title leads home
+  await expect(page.getByTestId('home-link')).toBeVisible();
+  await expect(page.getByTestId('menu-button')).toHaveCount(0);
   await expect(page.getByTestId('nav-users.list')).toHaveCount(0);
   await expect(page.getByTestId('nav-completions.list')).toHaveCount(0);
   await serviceWorkerReady(page);
