@@ -79,7 +79,7 @@ describe('stepNotes', () => {
   });
 
   test('a two-wafer build-up names the wafer to stack first, by size (common practice: the larger, lower wafer first)', () => {
-    const plan = loadingSteps(pinCore(sfic6, mixedKeys), sfic6);
+    const plan = loadingSteps(pinCore(kit6, mixedKeys), kit6);
     const first = plan.find((s) => s.kind === 'buildUp' && s.ofKind?.of === 2)!;
     const pair = plan.filter((s) => s.chamber === first.chamber && s.kind === 'buildUp');
     expect(stepNotes(first, plan)).toContain(`Two wafers make this build-up: stack the ${pair[0]!.size} first, then the ${pair[1]!.size} on top.`);
