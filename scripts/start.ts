@@ -54,17 +54,28 @@ try {
     const build = spawnSync('npx', ['vite', 'build', '--logLevel', 'warn'], { cwd: root, stdio: 'inherit' });
     if (build.status !== 0) throw new Error('the client build failed');
   }
-  server = spawn(process.execPath, ['--import', 'tsx', path.join(root, 'server/index.ts')], {
-    cwd: root,
-    stdio: 'inherit',
-    env: { ...process.env, DATABASE_URL: databaseUrl, PORT: String(port), NODE_ENV: process.env.NODE_ENV ?? 'development', CW_FAKE_SMTP: process.env.CW_FAKE_SMTP ?? '1' },
-  });
-  server.on('exit', (code) => {
-    if (!stopping) {
-      console.error(`[start] the server stopped (exit ${code}); stopping Postgres`);
-      stopAll(code ?? 1);
-    }
-  });
+  const serverEnv = { ...process.env, DATABASE_URL: databaseUrl, PORT: String(port), NODE_ENV: process.env.NODE_ENV ?? 'development', CW_FAKE_SMTP: process.env.CW_FAKE_SMTP ?? '1' };
+  // A server that stops on its own is started again; Postgres keeps running under it, so one
+  // bad request can never take the database down with it. Only a crash loop gives up.
+  const exits: number[] = [];
+  const launch = () => {
+    if (stopping) return;
+    server = spawn(process.execPath, ['--import', 'tsx', path.join(root, 'server/index.ts')], { cwd: root, stdio: 'inherit', env: serverEnv });
+    server.on('exit', (code, signal) => {
+      if (stopping) return;
+      const now = Date.now();
+      exits.push(now);
+      while (exits.length && exits[0]! < now - 60_000) exits.shift();
+      if (exits.length >= 5) {
+        console.error(`[start] the server stopped ${exits.length} times in a minute (last: ${signal ?? `exit ${code}`}); stopping`);
+        stopAll(code ?? 1);
+        return;
+      }
+      console.error(`[start] the server stopped (${signal ?? `exit ${code}`}); starting it again, Postgres stays up`);
+      setTimeout(launch, 1000);
+    });
+  };
+  launch();
   console.log(`\n  Corewright: http://127.0.0.1:${port}\n  Demo accounts (local demo only), password corewright-demo:\n    tech@demo.corewright.test  lead@demo.corewright.test  admin@demo.corewright.test\n  Ctrl-C stops the app and its database.\n`);
 } catch (err) {
   console.error(`[start] ${(err as Error).message}`);

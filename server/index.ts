@@ -6,6 +6,12 @@ import { startFakeSmtp, type FakeSmtp } from './dev/fakeSmtp';
 import { createMailer } from './services/mail';
 import { sendPending } from './services/notifier';
 
+// A promise nobody awaited must never stop the server for every other user (T1): log it, keep serving.
+// (Node's default since v15 is to exit; ASVS 5 V16: errors are handled, not fatal.)
+process.on('unhandledRejection', (reason) => {
+  console.error('[server] unhandled rejection (kept serving):', reason instanceof Error ? (reason.stack ?? reason.message) : reason);
+});
+
 let config = loadConfig();
 let smtp: FakeSmtp | undefined;
 if (process.env.CW_FAKE_SMTP === '1' && config.env !== 'production') {

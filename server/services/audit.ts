@@ -26,3 +26,15 @@ export async function audit(
     details: JSON.stringify(details),
   });
 }
+
+/**
+ * For side writes that must never change the answer (a lockout, a refused request): a failure
+ * is logged and swallowed, never left as an unhandled rejection that would stop the process.
+ */
+export async function auditQuietly(db: Knex, actor: Actor, action: string, target?: { type: string; id: string } | null, details: Record<string, unknown> = {}): Promise<void> {
+  try {
+    await audit(db, actor, action, target, details);
+  } catch (err) {
+    console.error(`[audit] could not record ${action}:`, (err as Error).message);
+  }
+}

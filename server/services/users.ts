@@ -41,7 +41,8 @@ export async function updateUser(db: Knex, id: string, input: UserUpdate, by: st
   });
 }
 
-export async function acceptInvitation(db: Knex, token: string, password: string): Promise<{ userId: string; email: string }> {
+/** `record` writes the audit row inside the same transaction, so an accepted link is never unaudited. */
+export async function acceptInvitation(db: Knex, token: string, password: string, record?: (trx: Knex.Transaction, userId: string, email: string) => Promise<void>): Promise<{ userId: string; email: string }> {
   const hash = await hashPassword(password);
   return db.transaction(async (trx) => {
     const inv = await trx('invitations as i').join('users as u', 'u.id', 'i.user_id').where('i.token_hash', sha256(token)).forUpdate().first('i.id', 'i.expires_at', 'i.used_at', 'u.id as userId', 'u.email', 'u.active');
@@ -50,6 +51,7 @@ export async function acceptInvitation(db: Knex, token: string, password: string
     }
     await trx('invitations').where({ id: inv.id }).update({ used_at: trx.fn.now() });
     await trx('users').where({ id: inv.userId }).update({ password_hash: hash, updated_at: trx.fn.now() });
+    await record?.(trx, inv.userId, inv.email);
     return { userId: inv.userId, email: inv.email };
   });
 }

@@ -46,6 +46,8 @@ export interface ServerProcessOptions {
   readyTimeoutMs?: number;
   /** How long a SIGKILLed child may take to be reaped, ms. */
   exitTimeoutMs?: number;
+  /** When a start counts as ready: /api/health says ok (default), or /api/health answers at all (a server whose database is down). */
+  ready?: 'healthy' | 'answering';
 }
 
 export interface ServerProcess {
@@ -57,7 +59,7 @@ export interface ServerProcess {
   readonly pid: number | undefined;
   /** Completed starts so far. */
   readonly starts: number;
-  /** Spawns the server and resolves once /api/health answers status ok; rejects (and kills) on timeout or early exit. */
+  /** Spawns the server and resolves once /api/health answers status ok (or, with ready 'answering', answers); rejects (and kills) on timeout or early exit. */
   start(): Promise<void>;
   /** SIGKILL now (synchronously), then resolves once the child has exited. A no-op when not running. */
   kill(): Promise<void>;
@@ -126,7 +128,7 @@ export async function serverProcess(opts: ServerProcessOptions = {}): Promise<Se
       try {
         const res = await fetch(`${base}/api/health`, { signal: AbortSignal.timeout(1_000) });
         const body = (await res.json()) as { status?: string };
-        if (res.status === 200 && body.status === 'ok') {
+        if ((res.status === 200 && body.status === 'ok') || (opts.ready === 'answering' && typeof body.status === 'string')) {
           starts++;
           return;
         }
