@@ -6,6 +6,7 @@ import type { Ctx } from '../context';
 import { actorOf, allow } from '../middleware/auth';
 import { parse } from '../middleware/validate';
 import { audit } from '../services/audit';
+import { neutraliseCell, safeQuoting } from '../services/csvSafe';
 import { completionRowsForExport, getCompletion, listCompletions } from '../services/completions';
 
 export function completionsRouter({ db }: Ctx): Router {
@@ -20,11 +21,11 @@ export function completionsRouter({ db }: Ctx): Router {
     res.set('Content-Disposition', `attachment; filename="completion-log-${new Date().toISOString().slice(0, 10)}.csv"`);
     const columns = ['finishedAt', 'startedAt', 'receivedAt', 'coreTag', 'doorLabel', 'workOrderNumber', 'workOrderTitle', 'technicianName', 'result', 'attemptCount', 'failedChecks', 'id'];
     // RFC 4180: CRLF between records.
-    const csv = stringify({ header: true, columns, record_delimiter: 'windows', cast: { object: (v) => JSON.stringify(v) } });
+    const csv = stringify({ header: true, columns, record_delimiter: 'windows', cast: { object: (v) => JSON.stringify(v) }, ...safeQuoting });
     csv.pipe(res);
     for await (const row of completionRowsForExport(db, q)) {
-      // A cell starting with = + - @ would run as a formula in a spreadsheet: prefix it.
-      const safe = Object.fromEntries(Object.entries(row).map(([k, v]) => [k, typeof v === 'string' && /^[=+\-@\t\r]/.test(v) ? `'${v}` : v]));
+      // A cell that a spreadsheet would run as a formula is shown as text instead (csvSafe.ts).
+      const safe = Object.fromEntries(Object.entries(row).map(([k, v]) => [k, neutraliseCell(v)]));
       if (!csv.write(safe)) await new Promise((resolve) => csv.once('drain', resolve));
     }
     csv.end();

@@ -1,6 +1,6 @@
 import { Router } from 'express';
 import { z } from 'zod';
-import { Id } from '../../shared/schemas/common';
+import { Id, Text } from '../../shared/schemas/common';
 import { CoreUpdate } from '../../shared/schemas/records';
 import type { Ctx } from '../context';
 import { notFound } from '../errors';
@@ -8,7 +8,7 @@ import { actorOf, allow } from '../middleware/auth';
 import { parse } from '../middleware/validate';
 import { audit } from '../services/audit';
 
-const CoreFilter = z.strictObject({ keySystemId: Id.optional(), doorId: Id.optional(), state: z.string().max(12).optional(), tag: z.string().trim().max(24).optional() });
+const CoreFilter = z.strictObject({ keySystemId: Id.optional(), doorId: Id.optional(), state: Text(12, 'state').optional(), tag: Text(24, 'tag').optional() });
 
 export function coresRouter({ db }: Ctx): Router {
   const r = Router();
@@ -45,9 +45,11 @@ export function coresRouter({ db }: Ctx): Router {
     const patch: Record<string, unknown> = { updated_at: db.fn.now() };
     if (input.doorId !== undefined) patch.door_id = input.doorId;
     if (input.state) patch.state = input.state;
-    const n = await db('cores').where({ id }).update(patch);
-    if (!n) throw notFound('That core');
-    await audit(db, actorOf(req), input.state === 'retired' ? 'core.retired' : 'core.updated', { type: 'core', id });
+    await db.transaction(async (trx) => {
+      const n = await trx('cores').where({ id }).update(patch);
+      if (!n) throw notFound('That core');
+      await audit(trx, actorOf(req), input.state === 'retired' ? 'core.retired' : 'core.updated', { type: 'core', id });
+    });
     res.json({ core: await query().where('c.id', id).first() });
   });
   return r;

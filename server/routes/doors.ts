@@ -1,6 +1,6 @@
 import { Router } from 'express';
 import { z } from 'zod';
-import { Id } from '../../shared/schemas/common';
+import { Id, Text } from '../../shared/schemas/common';
 import { DoorInput, DoorUpdate } from '../../shared/schemas/records';
 import type { Ctx } from '../context';
 import { badRequest } from '../errors';
@@ -12,8 +12,8 @@ import { createDoors, doorHistory, getDoor, listDoors, updateDoor } from '../ser
 import { upload } from './keySystems';
 
 const DoorFilter = z.strictObject({
-  q: z.string().trim().max(80).optional(),
-  building: z.string().trim().max(80).optional(),
+  q: Text(80, 'q').optional(),
+  building: Text(80, 'building').optional(),
   fireRated: z.enum(['0', '1']).optional(),
   keySystemId: Id.optional(),
 });
@@ -25,14 +25,22 @@ export function doorsRouter({ db }: Ctx): Router {
     res.json({ doors: await listDoors(db, { ...f, fireRated: f.fireRated === undefined ? undefined : f.fireRated === '1' }) });
   });
   r.post('/doors', allow('admin'), async (req, res) => {
-    const [id] = await createDoors(db, [parse(DoorInput, req.body, 'The door')]);
-    await audit(db, actorOf(req), 'door.created', { type: 'door', id: id! });
+    const input = parse(DoorInput, req.body, 'The door');
+    const id = await db.transaction(async (trx) => {
+      const [created] = await createDoors(trx, [input]);
+      await audit(trx, actorOf(req), 'door.created', { type: 'door', id: created! });
+      return created;
+    });
     res.status(201).json({ door: await getDoor(db, id!) });
   });
   r.post('/doors/import', allow('admin'), upload.single('file'), async (req, res) => {
     if (!req.file) throw badRequest('Attach the CSV file as the form field "file".', [{ field: 'file', message: 'missing' }]);
-    const result = await importDoors(db, req.file.buffer, req.query.commit === '1');
-    if (result.committed) await audit(db, actorOf(req), 'doors.imported', null, { count: result.created });
+    const commit = req.query.commit === '1';
+    const result = await db.transaction(async (trx) => {
+      const outcome = await importDoors(trx, req.file!.buffer, commit);
+      if (outcome.committed) await audit(trx, actorOf(req), 'doors.imported', null, { count: outcome.created });
+      return outcome;
+    });
     res.status(result.errors.length ? 422 : 200).json(result);
   });
   r.get('/doors/:id', allow('supervisor', 'admin'), async (req, res) => {
@@ -40,8 +48,11 @@ export function doorsRouter({ db }: Ctx): Router {
   });
   r.patch('/doors/:id', allow('admin'), async (req, res) => {
     const id = parse(Id, req.params.id, 'The door id');
-    await updateDoor(db, id, parse(DoorUpdate, req.body, 'The door'));
-    await audit(db, actorOf(req), 'door.updated', { type: 'door', id });
+    const input = parse(DoorUpdate, req.body, 'The door');
+    await db.transaction(async (trx) => {
+      await updateDoor(trx, id, input);
+      await audit(trx, actorOf(req), 'door.updated', { type: 'door', id });
+    });
     res.json({ door: await getDoor(db, id) });
   });
   r.get('/doors/:id/history', allow('supervisor', 'admin'), async (req, res) => {

@@ -3,7 +3,7 @@ import multer from 'multer';
 import { z } from 'zod';
 import { auditSystem, progressKeys, KeyingError, type AuditFinding } from '../../shared/keying';
 import { Id } from '../../shared/schemas/common';
-import { KeyInput, KeySystemInput, KeySystemUpdate, KeyUpdate, ProfileInput, ProgressionInput, type HeldKey } from '../../shared/schemas/records';
+import { KeyInput, KeySystemInput, KeySystemUpdate, KeyUpdate, ProfileId, ProfileInput, ProgressionInput, type HeldKey } from '../../shared/schemas/records';
 import type { Ctx } from '../context';
 import { badRequest } from '../errors';
 import { actorOf, allow } from '../middleware/auth';
@@ -34,20 +34,33 @@ export function keySystemsRouter({ db, sealer, config }: Ctx): Router {
 
   r.get('/profiles', allow('supervisor', 'admin'), async (_req, res) => res.json({ profiles: await listProfiles(db) }));
   r.post('/profiles', allow('admin'), async (req, res) => {
-    const profile = await createProfile(db, parse(ProfileInput, req.body, 'The profile'));
-    await audit(db, actorOf(req), 'profile.created', { type: 'profile', id: profile.id });
+    const input = parse(ProfileInput, req.body, 'The profile');
+    const profile = await db.transaction(async (trx) => {
+      const created = await createProfile(trx, input);
+      await audit(trx, actorOf(req), 'profile.created', { type: 'profile', id: created.id });
+      return created;
+    });
     res.status(201).json({ profile });
   });
   r.put('/profiles/:pid', allow('admin'), async (req, res) => {
-    const profile = await updateProfile(db, String(req.params.pid), parse(ProfileInput, req.body, 'The profile'));
-    await audit(db, actorOf(req), 'profile.updated', { type: 'profile', id: profile.id });
+    const pid = parse(ProfileId, req.params.pid, 'The profile id');
+    const input = parse(ProfileInput, req.body, 'The profile');
+    const profile = await db.transaction(async (trx) => {
+      const updated = await updateProfile(trx, pid, input);
+      await audit(trx, actorOf(req), 'profile.updated', { type: 'profile', id: updated.id });
+      return updated;
+    });
     res.json({ profile });
   });
 
   r.get('/key-systems', allow('supervisor', 'admin'), async (_req, res) => res.json({ keySystems: await listSystems(db) }));
   r.post('/key-systems', allow('admin'), async (req, res) => {
-    const id = await createSystem(db, sealer, parse(KeySystemInput, req.body, 'The key system'));
-    await audit(db, actorOf(req), 'key-system.created', { type: 'key-system', id });
+    const input = parse(KeySystemInput, req.body, 'The key system');
+    const id = await db.transaction(async (trx) => {
+      const created = await createSystem(trx, sealer, input);
+      await audit(trx, actorOf(req), 'key-system.created', { type: 'key-system', id: created });
+      return created;
+    });
     res.status(201).json({ keySystem: await getSystem(db, id) });
   });
   r.get('/key-systems/:id', allow('supervisor', 'admin'), async (req, res) => {
@@ -64,8 +77,10 @@ export function keySystemsRouter({ db, sealer, config }: Ctx): Router {
   r.patch('/key-systems/:id', allow('admin'), async (req, res) => {
     const { id } = parse(IdParam, req.params);
     const input = parse(KeySystemUpdate, req.body, 'The key system');
-    await updateSystem(db, sealer, id, input);
-    await audit(db, actorOf(req), input.control ? 'key-system.control-changed' : 'key-system.updated', { type: 'key-system', id });
+    await db.transaction(async (trx) => {
+      await updateSystem(trx, sealer, id, input);
+      await audit(trx, actorOf(req), input.control ? 'key-system.control-changed' : 'key-system.updated', { type: 'key-system', id });
+    });
     res.json({ keySystem: await getSystem(db, id) });
   });
 
@@ -80,16 +95,21 @@ export function keySystemsRouter({ db, sealer, config }: Ctx): Router {
     const { id } = parse(IdParam, req.params);
     const body = req.body as { keys?: unknown };
     const inputs = Array.isArray(body?.keys) ? parse(z.array(KeyInput).min(1).max(2000), body.keys, 'The keys') : [parse(KeyInput, req.body, 'The key')];
-    const ids = await addKeys(db, sealer, id, inputs);
-    await audit(db, actorOf(req), 'keys.added', { type: 'key-system', id }, { count: ids.length });
+    const ids = await db.transaction(async (trx) => {
+      const added = await addKeys(trx, sealer, id, inputs);
+      await audit(trx, actorOf(req), 'keys.added', { type: 'key-system', id }, { count: added.length });
+      return added;
+    });
     res.status(201).json({ ids });
   });
   r.patch('/key-systems/:id/keys/:keyId', allow('admin'), async (req, res) => {
     const { id } = parse(IdParam, req.params);
     const keyId = parse(Id, req.params.keyId, 'The key id');
     const input = parse(KeyUpdate, req.body, 'The key');
-    await updateKey(db, sealer, id, keyId, input);
-    await audit(db, actorOf(req), input.bitting ? 'key.bitting-changed' : 'key.updated', { type: 'key', id: keyId }, { status: input.status });
+    await db.transaction(async (trx) => {
+      await updateKey(trx, sealer, id, keyId, input);
+      await audit(trx, actorOf(req), input.bitting ? 'key.bitting-changed' : 'key.updated', { type: 'key', id: keyId }, { status: input.status });
+    });
     res.json({ ok: true });
   });
 
@@ -151,8 +171,11 @@ export function keySystemsRouter({ db, sealer, config }: Ctx): Router {
     const { id } = parse(IdParam, req.params);
     if (!req.file) throw badRequest('Attach the CSV file as the form field "file".', [{ field: 'file', message: 'missing' }]);
     const commit = req.query.commit === '1';
-    const result = await importKeys(db, sealer, id, req.file.buffer, commit);
-    if (result.committed) await audit(db, actorOf(req), 'keys.imported', { type: 'key-system', id }, { count: result.created });
+    const result = await db.transaction(async (trx) => {
+      const outcome = await importKeys(trx, sealer, id, req.file!.buffer, commit);
+      if (outcome.committed) await audit(trx, actorOf(req), 'keys.imported', { type: 'key-system', id }, { count: outcome.created });
+      return outcome;
+    });
     res.status(result.errors.length ? 422 : 200).json(result);
   });
 

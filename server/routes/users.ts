@@ -1,7 +1,7 @@
 import { Router } from 'express';
 import { z } from 'zod';
 import { InviteRequest, UserUpdate } from '../../shared/schemas/auth';
-import { Id, IsoDate, TzOffset } from '../../shared/schemas/common';
+import { Id, IsoDate, Text, TzOffset } from '../../shared/schemas/common';
 import type { Ctx } from '../context';
 import { actorOf, allow } from '../middleware/auth';
 import { parse } from '../middleware/validate';
@@ -11,9 +11,9 @@ import { whereDays } from '../services/dates';
 import { inviteUser, listUsers, updateUser } from '../services/users';
 
 const AuditQuery = z.strictObject({
-  action: z.string().trim().max(60).optional(),
+  action: Text(60, 'action').optional(),
   actorId: Id.optional(),
-  targetId: z.string().trim().max(80).optional(),
+  targetId: Text(80, 'targetId').optional(),
   from: IsoDate.optional(),
   to: IsoDate.optional(),
   tz: TzOffset,
@@ -30,16 +30,21 @@ export function usersRouter({ db, mailer, config }: Ctx): Router {
   });
   r.post('/users', allow('admin'), async (req, res) => {
     const input = parse(InviteRequest, req.body, 'The invitation');
-    const { userId, token } = await inviteUser(db, input, req.user!.id);
-    await audit(db, actorOf(req), 'user.invited', { type: 'user', id: userId }, { role: input.role });
+    const { userId, token } = await db.transaction(async (trx) => {
+      const invited = await inviteUser(trx, input, req.user!.id);
+      await audit(trx, actorOf(req), 'user.invited', { type: 'user', id: invited.userId }, { role: input.role });
+      return invited;
+    });
     await mailer.send({ to: input.email, ...mails.invitation(input.name, `${config.publicUrl}/set-password?token=${token}`, req.user!.name) });
     res.status(201).json({ user: (await listUsers(db, userId))[0] });
   });
   r.patch('/users/:id', allow('admin'), async (req, res) => {
     const id = parse(Id, req.params.id, 'The user id');
     const input = parse(UserUpdate, req.body, 'The user');
-    await updateUser(db, id, input, req.user!.id);
-    await audit(db, actorOf(req), input.active === false ? 'user.deactivated' : input.role ? 'user.role-changed' : 'user.updated', { type: 'user', id }, { ...input });
+    await db.transaction(async (trx) => {
+      await updateUser(trx, id, input, req.user!.id);
+      await audit(trx, actorOf(req), input.active === false ? 'user.deactivated' : input.role ? 'user.role-changed' : 'user.updated', { type: 'user', id }, { ...input });
+    });
     res.json({ user: (await listUsers(db, id))[0] });
   });
   r.get('/audit-events', allow('admin'), async (req, res) => {

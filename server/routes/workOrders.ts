@@ -38,8 +38,11 @@ export function workOrdersRouter({ db, sealer, mailer, config }: Ctx): Router {
 
   r.post('/work-orders', allow('supervisor', 'admin'), async (req, res) => {
     const input = parse(WorkOrderInput, req.body, 'The work order');
-    const created = await createWorkOrder(db, sealer, input, req.user!.id);
-    await audit(db, actorOf(req), 'work-order.created', { type: 'work-order', id: created.id }, { cores: created.cores, assigneeId: input.assigneeId ?? null });
+    const created = await db.transaction(async (trx) => {
+      const made = await createWorkOrder(trx, sealer, input, req.user!.id);
+      await audit(trx, actorOf(req), 'work-order.created', { type: 'work-order', id: made.id }, { cores: made.cores, assigneeId: input.assigneeId ?? null });
+      return made;
+    });
     const workOrder = await getWorkOrder(db, created.id);
     if (input.assigneeId) await notifyAssignee(workOrder, input.assigneeId);
     res.status(201).json({ workOrder });
@@ -69,8 +72,12 @@ export function workOrdersRouter({ db, sealer, mailer, config }: Ctx): Router {
 
   r.patch('/work-orders/:id', allow('supervisor', 'admin'), async (req, res) => {
     const id = parse(Id, req.params.id, 'The work order id');
-    const { assignedTo } = await updateWorkOrder(db, id, parse(WorkOrderUpdate, req.body, 'The work order'));
-    await audit(db, actorOf(req), 'work-order.updated', { type: 'work-order', id }, { assigneeId: assignedTo });
+    const input = parse(WorkOrderUpdate, req.body, 'The work order');
+    const { assignedTo } = await db.transaction(async (trx) => {
+      const outcome = await updateWorkOrder(trx, id, input);
+      await audit(trx, actorOf(req), 'work-order.updated', { type: 'work-order', id }, { assigneeId: outcome.assignedTo });
+      return outcome;
+    });
     const workOrder = await getWorkOrder(db, id);
     if (assignedTo) await notifyAssignee(workOrder, assignedTo);
     res.json({ workOrder });
@@ -83,8 +90,13 @@ export function workOrdersRouter({ db, sealer, mailer, config }: Ctx): Router {
       await audit(db, actorOf(req), 'access.denied', { type: 'work-order-packet', id });
       throw forbidden('This work order is not assigned to you; its packet stays with the assignee.');
     }
+    // Bittings travel only to a tablet the server knows the session by, so revoking it stops them (T7).
+    if (!req.user!.deviceId) {
+      await audit(db, actorOf(req), 'access.denied', { type: 'work-order-packet', id }, { reason: 'no-device' });
+      throw forbidden('Packets go only to a tablet: sign in on the Bench tablet (this sign-in names no device).');
+    }
     const packet = await buildPacket(db, sealer, id);
-    await audit(db, actorOf(req), 'packet.downloaded', { type: 'work-order', id }, { cores: packet.cores.length });
+    await audit(db, actorOf(req), 'packet.downloaded', { type: 'work-order', id }, { cores: packet.cores.length, deviceId: req.user!.deviceId });
     res.json({ packet });
   });
 

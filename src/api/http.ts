@@ -59,14 +59,19 @@ export async function authorizedFetch(path: string, init: RequestInit = {}, auth
   return res;
 }
 
+/** What a user reads while the server (or its database) is away: work is kept, so waiting is safe. */
+export const UNAVAILABLE_MESSAGE = 'The server is not available just now (its database is away or it is restarting). Nothing was lost; try again in a minute.';
+
 /** The server's error shape as an ApiError; anything else (a proxy, the service worker) by its status. */
 export async function errorOf(res: Response): Promise<ApiError> {
   try {
     const body = (await res.json()) as ApiErrorBody;
+    if (body?.error?.code === 'unavailable') return new ApiError('unavailable', UNAVAILABLE_MESSAGE, res.status);
     if (body?.error?.code) return new ApiError(body.error.code, body.error.message, res.status, body.error.details ?? []);
   } catch {
     // not our JSON
   }
+  if (res.status === 503) return new ApiError('unavailable', UNAVAILABLE_MESSAGE, res.status);
   return new ApiError(res.status >= 500 ? 'internal' : 'unknown', `The server answered ${res.status} ${res.statusText}.`, res.status);
 }
 
