@@ -7,6 +7,7 @@ import { parse as parseCsv } from 'csv-parse/sync';
 import type { Knex } from 'knex';
 import { auditSystem, placementChecker, readBitting } from '../../shared/keying';
 import { auditInputFor } from './systemAudit';
+import { textProblem } from '../../shared/schemas/common';
 import { DoorInput, KeyInput, KeyLevel } from '../../shared/schemas/records';
 import { badRequest } from '../errors';
 import { createDoors } from './doors';
@@ -48,6 +49,26 @@ function readCsv(buffer: Buffer, required: string[], known: string[]): CsvRow[] 
   if (unknown.length) throw badRequest(`Unknown column(s) ${unknown.join(', ')}. Expected columns: ${known.join(', ')}.`, unknown.map((c) => ({ field: c, message: 'unknown column' })));
   if (records.length > 5000) throw badRequest('At most 5,000 rows per import; split the file.');
   return records;
+}
+
+/**
+ * Cells holding controls (NUL cannot be stored) or, outside notes, invisible and
+ * direction-changing characters (a label that shows as another): one error per cell, with
+ * the row, so the sheet can be fixed; such rows are not checked further.
+ */
+function cellProblems(records: CsvRow[]): { errors: RowError[]; bad: Set<number> } {
+  const errors: RowError[] = [];
+  const bad = new Set<number>();
+  records.forEach((r, i) => {
+    for (const [column, value] of Object.entries(r)) {
+      if (column === '__row' || typeof value !== 'string') continue;
+      const problem = textProblem(value, column === 'notes' ? { lines: true } : { names: true });
+      if (!problem) continue;
+      errors.push({ row: r.__row, column, message: problem });
+      bad.add(i);
+    }
+  });
+  return { errors, bad };
 }
 
 const yes = (v: string | undefined) => /^(1|y|yes|true|x)$/i.test((v ?? '').trim());
@@ -102,7 +123,7 @@ const KEY_COLUMNS = ['symbol', 'level', 'parent', 'bitting', 'status', 'cross_ke
 export async function importKeys(db: Knex, sealer: Sealer, systemId: string, file: Buffer, commit: boolean): Promise<ImportResult> {
   const system = await loadSystem(db, sealer, systemId);
   const records = readCsv(file, ['symbol', 'level', 'bitting'], KEY_COLUMNS);
-  const errors: RowError[] = [];
+  const { errors, bad } = cellProblems(records);
   const existing = new Set(system.keys.map((k) => k.symbol.toUpperCase()));
   const levelOf = new Map(system.keys.map((k) => [k.symbol.toUpperCase(), k.level]));
   const inFile = new Map<string, number>();
@@ -113,6 +134,7 @@ export async function importKeys(db: Knex, sealer: Sealer, systemId: string, fil
   const parsed: (KeyInput & { parentSymbol: string | null })[] = [];
   const parsedRows: number[] = [];
   records.forEach((r, i) => {
+    if (bad.has(i)) return;
     const row = r.__row;
     const level = levelWords[(r.level ?? '').trim().toLowerCase()];
     const result = KeyInput.safeParse({
@@ -163,9 +185,10 @@ export async function importDoors(db: Knex, file: Buffer, commit: boolean): Prom
   const keys = await db('keys').select('id', 'symbol', 'key_system_id');
   const existing = new Set((await db('doors').pluck('label')).map((l: string) => l.toLowerCase()));
   const seen = new Map<string, number>();
-  const errors: RowError[] = [];
+  const { errors, bad } = cellProblems(records);
   const parsed: DoorInput[] = [];
   records.forEach((r, i) => {
+    if (bad.has(i)) return;
     const row = r.__row;
     let keySystemId: string | null = null;
     let keyId: string | null = null;

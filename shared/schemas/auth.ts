@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { Name } from './common';
 
 export const Role = z.enum(['technician', 'supervisor', 'admin']);
 export type Role = z.infer<typeof Role>;
@@ -56,7 +57,7 @@ export const NewPassword = z
 
 export const InviteRequest = z.strictObject({
   email: Email,
-  name: z.string({ error: 'enter the name' }).trim().min(1, { error: 'enter the name' }).max(120, { error: 'a name has at most 120 characters' }),
+  name: Name(120, 'the name'),
   role: Role,
 });
 export type InviteRequest = z.infer<typeof InviteRequest>;
@@ -64,7 +65,7 @@ export type InviteRequest = z.infer<typeof InviteRequest>;
 export const UserUpdate = z.strictObject({
   role: Role.optional(),
   active: z.boolean().optional(),
-  name: z.string().trim().min(1).max(120).optional(),
+  name: Name(120, 'the name').optional(),
 });
 export type UserUpdate = z.infer<typeof UserUpdate>;
 

@@ -3,7 +3,7 @@
  * its type share one name. Write bodies are strict: an unknown field is refused.
  */
 import { z } from 'zod';
-import { BittingText, Id, IsoDate, IsoDateTime, Name, Text } from './common';
+import { BittingText, Id, IsoDate, IsoDateTime, Name, Notes, Text } from './common';
 
 export const KeyLevel = z.enum(['ggm', 'gm', 'master', 'change']);
 export type KeyLevel = z.infer<typeof KeyLevel>;
@@ -27,8 +27,9 @@ export const levelLabels: Record<KeyLevel, string> = { ggm: 'Great-grand master'
 
 // ---- profiles -------------------------------------------------------------------------
 const Sizes = z.array(z.number().int().min(0).max(30)).min(1, { error: 'stock at least one size' }).max(40);
+export const ProfileId = z.string({ error: 'a profile id is text' }).trim().regex(/^[a-z0-9-]{3,40}$/, { error: 'an id is 3 to 40 lower-case letters, digits and dashes' });
 export const ProfileInput = z.strictObject({
-  id: z.string().trim().regex(/^[a-z0-9-]{3,40}$/, { error: 'an id is 3 to 40 lower-case letters, digits and dashes' }),
+  id: ProfileId,
   label: Name(120, 'a descriptive name'),
   chambers: z.number().int().min(5, { error: 'at least 5 chambers' }).max(8, { error: 'at most 8 chambers' }),
   minDepth: z.number().int().min(0).max(15),
@@ -48,9 +49,9 @@ export type ProfileInput = z.infer<typeof ProfileInput>;
 // ---- key systems and keys ---------------------------------------------------------------
 export const KeySystemInput = z.strictObject({
   name: Name(120, 'a name for the key system'),
-  profileId: z.string().trim().min(1, { error: 'choose a profile' }).max(40),
+  profileId: Name(40, 'a profile'),
   control: BittingText,
-  notes: Text(2000, 'notes').optional(),
+  notes: Notes(2000, 'notes').optional(),
 });
 export type KeySystemInput = z.infer<typeof KeySystemInput>;
 export const KeySystemUpdate = KeySystemInput.partial();
@@ -78,7 +79,7 @@ export const KeyInput = z.strictObject({
   bitting: BittingText,
   status: KeyStatus.default('active'),
   crossKeyed: z.boolean().default(false),
-  notes: Text(500, 'notes').optional(),
+  notes: Notes(500, 'notes').optional(),
 });
 export type KeyInput = z.infer<typeof KeyInput>;
 
@@ -110,7 +111,7 @@ export const KeyUpdate = z.strictObject({
   symbol: KeySymbol.optional(),
   status: KeyStatus.optional(),
   parentId: Id.nullable().optional(),
-  notes: Text(500, 'notes').optional(),
+  notes: Notes(500, 'notes').optional(),
   bitting: BittingText.optional(),
 });
 export type KeyUpdate = z.infer<typeof KeyUpdate>;
@@ -139,7 +140,7 @@ export const DoorInput = z.strictObject({
   fireRated: z.boolean().default(false),
   keySystemId: Id.nullable().optional(),
   keyId: Id.nullable().optional(),
-  notes: Text(1000, 'notes').optional(),
+  notes: Notes(1000, 'notes').optional(),
 });
 export type DoorInput = z.infer<typeof DoorInput>;
 export const DoorUpdate = DoorInput.partial();
@@ -199,7 +200,7 @@ export const WorkOrderInput = z.strictObject({
   keySystemId: Id,
   assigneeId: Id.nullable().optional(),
   dueDate: IsoDate.nullable().optional(),
-  notes: Text(2000, 'notes').optional(),
+  notes: Notes(2000, 'notes').optional(),
   doors: z.array(WorkOrderDoor).min(1, { error: 'choose at least one door' }).max(500, { error: 'at most 500 doors in one work order' }),
 });
 export type WorkOrderInput = z.infer<typeof WorkOrderInput>;
@@ -208,7 +209,7 @@ export const WorkOrderUpdate = z.strictObject({
   purpose: WorkOrderPurpose.optional(),
   assigneeId: Id.nullable().optional(),
   dueDate: IsoDate.nullable().optional(),
-  notes: Text(2000, 'notes').optional(),
+  notes: Notes(2000, 'notes').optional(),
   status: z.enum(['draft', 'assigned', 'cancelled']).optional(),
 });
 export type WorkOrderUpdate = z.infer<typeof WorkOrderUpdate>;

@@ -5,7 +5,7 @@
  * payload is refused (conflict) and the stored row stays as it was.
  */
 import { z } from 'zod';
-import { Id, IsoDateTime, Text } from './common';
+import { Id, IsoDateTime, Name, Notes, Text } from './common';
 
 export const BenchStepKind = z.enum(['bottom', 'master', 'buildUp', 'top', 'level-check', 'springs', 'cap']);
 export type BenchStepKind = z.infer<typeof BenchStepKind>;
@@ -23,10 +23,10 @@ export type BenchStep = z.infer<typeof BenchStep>;
 export const KeyCheckResult = z.strictObject({
   phase: z.enum(['before-cap', 'after-cap']),
   role: z.enum(['change', 'master', 'cross', 'control', 'must-not-turn']),
-  symbol: z.string().min(1).max(24),
+  symbol: Name(24, 'the key symbol'),
   result: z.enum(['passed', 'failed']),
   /** What happened, asked for on a failure. */
-  note: Text(500, 'the note').optional(),
+  note: Notes(500, 'the note').optional(),
   at: IsoDateTime,
 });
 export type KeyCheckResult = z.infer<typeof KeyCheckResult>;
@@ -51,7 +51,7 @@ export const CompletionRecord = z.strictObject({
   /** passed: built, checked, capped and checked again; failed: set aside for a rebuild. */
   result: z.enum(['passed', 'failed']),
   attempts: z.array(Attempt).min(1, { error: 'a completion has at least one attempt' }).max(50),
-  notes: Text(2000, 'the notes').optional(),
+  notes: Notes(2000, 'the notes').optional(),
 });
 export type CompletionRecord = z.infer<typeof CompletionRecord>;
 
@@ -61,9 +61,9 @@ export const InstallRecord = z.strictObject({
   coreId: Id,
   doorId: Id,
   /** The tag of the core taken out of the door, when there was one. */
-  removedCoreTag: z.string().trim().max(24).nullable(),
+  removedCoreTag: Text(24, 'the removed core tag').nullable(),
   installedAt: IsoDateTime,
-  notes: Text(1000, 'the notes').optional(),
+  notes: Notes(1000, 'the notes').optional(),
 });
 export type InstallRecord = z.infer<typeof InstallRecord>;
 
