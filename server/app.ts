@@ -35,7 +35,8 @@ export function createApp({ db, config, mailer, smtp, log }: AppDeps): Express {
   const ctx: Ctx = { db, config, sealer: createSealer(config.dataKey), mailer: mailer ?? createMailer(config) };
   const app = express();
   app.disable('x-powered-by');
-  app.set('trust proxy', 'loopback');
+  // Who may set X-Forwarded-For: by default only a proxy on this machine (config.trustProxy, CW_TRUST_PROXY).
+  app.set('trust proxy', config.trustProxy);
   app.use(
     helmet({
       contentSecurityPolicy: {
@@ -71,7 +72,9 @@ export function createApp({ db, config, mailer, smtp, log }: AppDeps): Express {
   api.use((req, res, next) => (req.path === '/sync' ? next() : express.json({ limit: '100kb' })(req, res, next)));
   api.use(healthRouter(db));
   api.use(authRouter(db, config));
+  // The development mailbox exists only when npm start runs the fake SMTP outside production; otherwise 404.
   if (smtp && config.env !== 'production') api.use(devRouter(smtp));
+  else api.use('/dev', notFoundApi);
   api.use(requireAuth(db, config));
   // Every router below states its roles with allow(...).
   api.use(usersRouter(ctx));

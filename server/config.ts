@@ -18,6 +18,10 @@ export interface Config {
   dataKey: Buffer;
   accessTokenSeconds: number;
   refreshTokenSeconds: number;
+  /** How long a just-rotated refresh secret still gets the same new pair (parallel tabs, retries). */
+  refreshGraceSeconds: number;
+  /** Express `trust proxy`: which hops may set X-Forwarded-For (req.ip). CW_TRUST_PROXY; default loopback. */
+  trustProxy: boolean | number | string;
   /** Failed sign-ins allowed per e-mail and address before a 429. */
   signInAttempts: number;
   signInWindowMs: number;
@@ -43,6 +47,20 @@ function key32(name: string, base64: string): Buffer {
   return buf;
 }
 
+/**
+ * CW_TRUST_PROXY: `false` (no proxy: req.ip is the socket's peer), a hop count (`1`), or
+ * addresses / subnets / Express's names (`loopback`, `10.0.0.0/8, uniquelocal`). The default
+ * `loopback` fits one reverse proxy on the same machine: only it may say who the client is.
+ */
+export function trustProxyOf(value: string | undefined): boolean | number | string {
+  const v = (value ?? '').trim();
+  if (!v) return 'loopback';
+  if (v === 'false' || v === '0') return false;
+  if (/^[1-9][0-9]?$/.test(v)) return Number(v);
+  if (v === 'true') throw new Error('CW_TRUST_PROXY=true would let any client set its own address; name the proxy (loopback, an address or subnet) or a hop count');
+  return v;
+}
+
 export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
   const mode = (env.NODE_ENV === 'production' || env.NODE_ENV === 'test' ? env.NODE_ENV : 'development') as Config['env'];
   if (!env.DATABASE_URL) throw new Error('DATABASE_URL is not set (npm start and npm test set it for you)');
@@ -60,6 +78,8 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     dataKey: key32('CW_DATA_KEY', env.CW_DATA_KEY ?? fileSecrets!.dataKey),
     accessTokenSeconds: Number(env.CW_ACCESS_TOKEN_SECONDS ?? 15 * 60),
     refreshTokenSeconds: Number(env.CW_REFRESH_TOKEN_SECONDS ?? 7 * 24 * 3600),
+    refreshGraceSeconds: Number(env.CW_REFRESH_GRACE_SECONDS ?? 30),
+    trustProxy: trustProxyOf(env.CW_TRUST_PROXY),
     signInAttempts: Number(env.CW_SIGN_IN_ATTEMPTS ?? 5),
     signInWindowMs: Number(env.CW_SIGN_IN_WINDOW_MS ?? 15 * 60 * 1000),
     publicUrl: env.CW_PUBLIC_URL ?? `http://127.0.0.1:${port}`,
