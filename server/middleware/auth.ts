@@ -7,6 +7,7 @@ import type { Knex } from 'knex';
 import type { Config } from '../config';
 import type { Role } from '../../shared/schemas/auth';
 import { forbidden, HttpError, unauthenticated } from '../errors';
+import { DEVICE_REVOKED_MESSAGE } from '../services/devices';
 import { verifyAccessToken } from '../services/tokens';
 import type { Actor } from '../services/audit';
 
@@ -16,6 +17,8 @@ export interface AuthedUser {
   name: string;
   role: Role;
   sessionId: string;
+  /** The tablet this session signed in from, or null (a browser without the Bench). */
+  deviceId: string | null;
 }
 
 declare module 'express-serve-static-core' {
@@ -37,15 +40,16 @@ export function requireAuth(db: Knex, config: Config): RequestHandler {
     }
     const row = await db('sessions as s')
       .join('users as u', 'u.id', 's.user_id')
+      .leftJoin('devices as d', 'd.id', 's.device_id')
       .where({ 's.id': claims.sid, 'u.id': claims.sub })
-      .first('s.revoked_at', 's.revoked_reason', 's.expires_at', 'u.active', 'u.email', 'u.name', 'u.role');
+      .first('s.revoked_at', 's.revoked_reason', 's.expires_at', 's.device_id', 'd.revoked_at as device_revoked_at', 'u.active', 'u.email', 'u.name', 'u.role');
     // A tablet revoked by an administrator is told so, so it wipes its packets.
-    if (row?.revoked_reason === 'device-revoked') throw new HttpError('device-revoked', 'This tablet was revoked by an administrator; its packets are wiped. Finished work stays in its outbox.');
+    if (row?.revoked_reason === 'device-revoked' || row?.device_revoked_at) throw new HttpError('device-revoked', DEVICE_REVOKED_MESSAGE);
     if (!row || row.revoked_at || !row.active || new Date(row.expires_at) < new Date()) {
       throw unauthenticated('This session has ended; sign in again.');
     }
     // The role comes from the database, so a role change applies at once.
-    req.user = { id: claims.sub, email: row.email, name: row.name, role: row.role, sessionId: claims.sid };
+    req.user = { id: claims.sub, email: row.email, name: row.name, role: row.role, sessionId: claims.sid, deviceId: row.device_id ?? null };
     next();
   };
 }

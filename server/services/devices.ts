@@ -8,6 +8,8 @@ import type { Knex } from 'knex';
 import { HttpError } from '../errors';
 import type { Sealer } from './secrets';
 
+export const DEVICE_REVOKED_MESSAGE = 'This tablet was revoked by an administrator; its packets are wiped. Finished work stays in its outbox.';
+
 const escrowContext = (deviceId: string) => `device-escrow:${deviceId}`;
 
 export async function touchDevice(db: Knex, sealer: Sealer, userId: string, deviceId: string, label?: string): Promise<{ revoked: boolean; escrowKey: string }> {

@@ -77,4 +77,4 @@ export type { OutboxEntry, OutboxCount, Flag } from './outbox';
 export type { PacketSummary } from './packets';
 export type { SyncState, PassResult, PassOutcome, SyncEngine } from './syncEngine';
 export { createSyncEngine } from './syncEngine';
-export { createLocalLocks, type LockManagerLike } from './locks';
+export { createLocalLocks, lockManager, type LockManagerLike } from './locks';

@@ -8,6 +8,8 @@ import { computed, readonly, ref } from 'vue';
 import { roleRank, type Role, type SignInResponse, type User } from '@shared/schemas/auth';
 import * as authApi from '@/api/auth';
 import { ApiError, useTokenSource } from '@/api/http';
+import { refreshAcrossTabs } from '@/api/refreshLock';
+import { lockManager } from '@/offline';
 
 const KEY = 'cw.session';
 interface Stored {
@@ -60,19 +62,32 @@ export const useSessionStore = defineStore('session', () => {
   }
 
   let refreshing: Promise<string | null> | null = null;
+  /** One refresh per tab at a time, and one across tabs (refreshLock.ts): parallel 401s never replay a rotated token. */
   async function refreshTokens(): Promise<string | null> {
     const current = stored.value;
     if (!current) return null;
-    refreshing ??= authApi
-      .refresh(current.refreshToken)
-      .then((res) => {
-        accept(res);
-        return res.accessToken;
-      })
-      .catch((err: unknown) => {
-        if (err instanceof ApiError && err.status === 401) expired.value = true;
-        return null;
-      })
+    refreshing ??= refreshAcrossTabs<Stored>(
+      {
+        locks: lockManager(),
+        read: () => {
+          // Another tab may have stored a newer pair; take it over.
+          const latest = load();
+          if (latest && latest.refreshToken !== stored.value?.refreshToken) stored.value = latest;
+          return latest;
+        },
+        rotate: async (pair) => {
+          try {
+            accept(await authApi.refresh(pair.refreshToken));
+            return stored.value;
+          } catch (err) {
+            if (err instanceof ApiError && err.status === 401) expired.value = true;
+            return null;
+          }
+        },
+      },
+      current.refreshToken,
+    )
+      .catch(() => null)
       .finally(() => {
         refreshing = null;
       });

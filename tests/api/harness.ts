@@ -2,6 +2,7 @@
  * API test harness: the real Express app from createApp() on a loopback port, against the
  * real Postgres database that `npm test` created (DATABASE_URL), reset before each file.
  */
+import { randomUUID } from 'node:crypto';
 import type { AddressInfo } from 'node:net';
 import type { Server } from 'node:http';
 import { createApp } from '../../server/app';
@@ -38,7 +39,8 @@ export interface Harness {
   mailTo(address: string, count?: number): Promise<CapturedMail[]>;
   base: string;
   call(method: string, path: string, opts?: CallOptions): Promise<Reply>;
-  signIn(email: string, password?: string): Promise<{ accessToken: string; refreshToken: string; user: { id: string; role: string } }>;
+  /** Signs in as a tablet would, naming a device (a fresh one unless given; null for none). */
+  signIn(email: string, password?: string, deviceId?: string | null): Promise<{ accessToken: string; refreshToken: string; user: { id: string; role: string } }>;
   tokenFor(role: 'technician' | 'supervisor' | 'admin'): Promise<string>;
   /** resetDatabase() again (with the demo campus when the harness has it), forgetting signed-in tokens. */
   reset(): Promise<void>;
@@ -96,8 +98,8 @@ export async function startHarness(env: Record<string, string> = {}, opts: { dem
   }
 
   const tokens = new Map<string, string>();
-  async function signIn(email: string, password = DEMO_PASSWORD) {
-    const res = await call('POST', '/api/auth/sign-in', { body: { email, password } });
+  async function signIn(email: string, password = DEMO_PASSWORD, deviceId: string | null = randomUUID()) {
+    const res = await call('POST', '/api/auth/sign-in', { body: { email, password, ...(deviceId ? { deviceId } : {}) } });
     if (res.status !== 200) throw new Error(`sign-in as ${email} failed: ${res.status} ${res.text}`);
     return res.json;
   }
