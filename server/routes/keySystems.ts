@@ -2,7 +2,7 @@ import { Router } from 'express';
 import multer from 'multer';
 import { z } from 'zod';
 import { auditSystem, progressKeys, KeyingError, type AuditFinding } from '../../shared/keying';
-import { Id } from '../../shared/schemas/common';
+import { Id, Notes } from '../../shared/schemas/common';
 import { KeyInput, KeySystemInput, KeySystemUpdate, KeyUpdate, ProfileId, ProfileInput, ProgressionInput, type HeldKey } from '../../shared/schemas/records';
 import type { Ctx } from '../context';
 import { badRequest } from '../errors';
@@ -20,7 +20,7 @@ const IdParam = z.object({ id: Id });
 const Reveal = z.object({ reveal: z.enum(['0', '1']).optional() });
 const Acknowledge = z.strictObject({
   fingerprint: z.string().regex(/^[0-9a-f]{64}$/, { error: 'the fingerprint of a finding from this key system’s audit (64 hex digits)' }),
-  note: z.string().trim().min(3, { error: 'write why the finding is accepted (3 to 500 characters)' }).max(500, { error: 'keep the note to 500 characters' }),
+  note: Notes(500, 'the note').pipe(z.string().min(3, { error: 'write why the finding is accepted (3 to 500 characters)' })),
 });
 
 export function keySystemsRouter({ db, sealer, config }: Ctx): Router {
@@ -200,8 +200,11 @@ export function keySystemsRouter({ db, sealer, config }: Ctx): Router {
       throw badRequest('Errors cannot be acknowledged: fix what the finding names (its advice says how), then audit again.', [{ field: 'fingerprint', message: 'the finding is an error' }]);
     }
     const user = req.user!;
-    const acknowledgement = await acknowledge(db, { systemId: id, finding, note: input.note, user: { id: user.id, name: user.name } });
-    await audit(db, actorOf(req), 'audit-finding.acknowledged', { type: 'key-system', id }, { code: finding.code, fingerprint: finding.fingerprint, note: input.note });
+    const acknowledgement = await db.transaction(async (trx) => {
+      const made = await acknowledge(trx, { systemId: id, finding, note: input.note, user: { id: user.id, name: user.name } });
+      await audit(trx, actorOf(req), 'audit-finding.acknowledged', { type: 'key-system', id }, { code: finding.code, fingerprint: finding.fingerprint, note: input.note });
+      return made;
+    });
     res.status(201).json({ fingerprint: finding.fingerprint, acknowledgement });
   });
   return r;
