@@ -5,7 +5,7 @@ import { keyOperates } from './keyOperates';
 import { pinCore } from './pinCore';
 import { builtInProfiles } from './profiles';
 import { splitBuildUp, stockTable } from './stock';
-import { allBittings, keyedCore, smallKit, text } from './testing/arbitraries';
+import { allBittings, keyedCore, runs, smallKit, text } from './testing/arbitraries';
 import type { Profile } from './types';
 
 /*
@@ -63,7 +63,7 @@ describe('controlOpeningsCount against brute force', () => {
       expect(pinning.controlOpeningsCount).toBe(byJoints);
       // The warning is there exactly when more than one bitting releases.
       expect(pinning.issues.some((i) => i.code === 'control-opens-more')).toBe(releasing > 1);
-    }), { numRuns: 300 });
+    }), { numRuns: runs(300) });
   }, 60_000);
 
   test('a chart without two-wafer build-ups releases for the control key alone (primer: one break at c + S)', () => {
@@ -71,7 +71,7 @@ describe('controlOpeningsCount against brute force', () => {
       const pinning = pinCore(core.profile, { operating: core.operating.map(text), control: text(core.control) });
       fc.pre(!hasErrors(pinning) && pinning.chambers.every((c) => c.buildUp.length <= 1));
       expect(pinning.controlOpeningsCount).toBe(1);
-    }), { numRuns: 200 });
+    }), { numRuns: runs(200) });
   }, 60_000);
 });
 
@@ -93,7 +93,7 @@ describe('two-wafer splits (fast-check against every pair of stocked wafers)', (
       const releasesNone = all.filter(([lower]) => !depths.includes(deepest + lower - profile.sleeveUnits));
       const best = (list: [number, number][]) => list.reduce<[number, number] | null>((b, p) => (!b || p[0] > b[0] ? p : b), null);
       expect(splitBuildUp(stockTable(profile), units, depths)).toEqual(best(releasesNone.length ? releasesNone : all));
-    }), { numRuns: 500 });
+    }), { numRuns: runs(500) });
   });
 });
 

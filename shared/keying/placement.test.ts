@@ -2,7 +2,7 @@ import fc from 'fast-check';
 import { describe, expect, test } from 'vitest';
 import { checkKeyPlacement, masterConstantChambers, placementChecker, type PlacedKey, type PlacementSystem } from './placement';
 import { builtInProfiles } from './profiles';
-import { allBittings, text } from './testing/arbitraries';
+import { allBittings, runs, text } from './testing/arbitraries';
 import type { Profile } from './types';
 
 const sfic7 = builtInProfiles['sfic-7'] as Profile;
@@ -154,6 +154,50 @@ const systemArb = (profile: Profile) => {
   }));
 };
 
+describe('checkKeyPlacement: edges (common practice unless named)', () => {
+  test('changing the named top master itself asks no parity of it (it sets the parity)', () => {
+    expect(checkKeyPlacement(sfic7, campus, { id: 'a', bitting: '5628462', parentId: null })).toEqual([]);
+    // Any other key with that cut in chamber 1 is off the top master's parity.
+    expect(codes('5628462', null)).toEqual([['placement-parity', 1]]);
+  });
+
+  test('a bitting with a letter names the chamber it is in', () => {
+    expect(checkKeyPlacement(sfic7, campus, { bitting: '24x8420', parentId: 'aa' })).toEqual([
+      { code: 'bitting-not-digit', field: 'bitting', chamber: 3, message: expect.stringMatching(/^Chamber 3: “x” is not a depth/) },
+    ]);
+  });
+
+  test('a loop in the stored hierarchy ends the walk up instead of hanging', () => {
+    const looped: PlacementSystem = {
+      control: '7351735',
+      keys: [
+        { id: 'p', symbol: 'P', bitting: '4628462', parentId: 'q' },
+        { id: 'q', symbol: 'Q', bitting: '2628462', parentId: 'p' },
+      ],
+    };
+    // Walking up from P: P then Q; Q's master P is met again and the walk stops. P differs from Q in chamber 1.
+    expect(masterConstantChambers(sfic7, looped, 'p')).toEqual([1]);
+    expect(checkKeyPlacement(sfic7, looped, { bitting: '4628440', parentId: 'p' })).toEqual([]);
+  });
+
+  test('a key listed twice under one id counts once; an unreadable key is skipped in the comparisons', () => {
+    const odd: PlacementSystem = {
+      control: '7351735',
+      keys: [
+        { id: 'm', symbol: 'M', bitting: '2428462', parentId: null },
+        { id: 'm', symbol: 'M-again', bitting: '0000000', parentId: null },
+        { id: 'u', symbol: 'U', bitting: 'not a bitting', parentId: 'm' },
+      ],
+    };
+    expect(checkKeyPlacement(sfic7, odd, { bitting: '0000000', parentId: 'm' }).map((p) => p.code)).not.toContain('placement-equals-key');
+    expect(checkKeyPlacement(sfic7, odd, { bitting: '2428460', parentId: 'u' })).toEqual([]);
+  });
+
+  test('an unreadable control key is no reason to refuse a key', () => {
+    expect(checkKeyPlacement(sfic7, { ...campus, control: '' }, { bitting: '2428420', parentId: 'aa' })).toEqual([]);
+  });
+});
+
 describe('checkKeyPlacement against a brute-force oracle (fast-check; every 5-chamber bitting)', () => {
   test('accepts exactly the bittings the primer’s rules allow, under any key of a random tree', () => {
     fc.assert(fc.property(
@@ -168,7 +212,7 @@ describe('checkKeyPlacement against a brute-force oracle (fast-check; every 5-ch
         }
         expect(wrong).toEqual([]);
       },
-    ), { numRuns: 25 });
+    ), { numRuns: runs(25) });
   }, 60_000);
 
   test('every problem names a chamber within the profile, or none for whole-key problems', () => {
@@ -180,6 +224,6 @@ describe('checkKeyPlacement against a brute-force oracle (fast-check; every 5-ch
         expect(p.chamber ?? 1).toBeLessThanOrEqual(p.code === 'macs-exceeded' ? 4 : 5); // MACS names the left chamber of a pair
         expect(p.message).not.toContain(text(b)); // messages never repeat a bitting (restricted material)
       }
-    }), { numRuns: 200 });
+    }), { numRuns: runs(200) });
   });
 });

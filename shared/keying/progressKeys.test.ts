@@ -3,7 +3,7 @@ import { describe, expect, test } from 'vitest';
 import { progressKeys } from './progressKeys';
 import type { PlacementSystem } from './placement';
 import { builtInProfiles } from './profiles';
-import { allBittings, text } from './testing/arbitraries';
+import { allBittings, runs, text } from './testing/arbitraries';
 import type { Profile } from './types';
 
 const sfic6 = builtInProfiles['sfic-6'] as Profile;
@@ -101,7 +101,7 @@ describe('progressKeys: brute force over every 5-chamber bitting', () => {
         }
         expect(progressKeys(profile, { topMaster: text(top), progress })).toEqual(expected);
       },
-    ), { numRuns: 25 });
+    ), { numRuns: runs(25) });
   });
 });
 
@@ -191,7 +191,7 @@ describe('progressKeys: rotating constant against brute force (fast-check; every
         expect(keys.length).toBe(new Set(keys).size);
         expect(new Set(keys)).toEqual(expected);
       },
-    ), { numRuns: 40 });
+    ), { numRuns: runs(40) });
   });
 
   test('without MACS in the way, consecutive keys keep different chambers constant until every choice has had a turn', () => {
@@ -205,6 +205,36 @@ describe('progressKeys: rotating constant against brute force (fast-check; every
         // Each of the n chambers takes the constant in turn, in chamber order.
         expect(keys.slice(0, sorted.length).map(constantOf)).toEqual(sorted.map((c) => [c]));
       },
-    ), { numRuns: 100 });
+    ), { numRuns: runs(100) });
+  });
+});
+
+describe('progressKeys: edges of the options (our own arithmetic)', () => {
+  test('rotating constant counts every pattern toward the size check', () => {
+    // 8 chambers, one-step: 9 other depths per chamber; one constant of 8 gives 8 x 9^7 = 38,263,752 keys.
+    const big: Profile = { ...sfic7, chambers: 8, step: 1 };
+    expect(() => progressKeys(big, { topMaster: '12345678', progress: [1, 2, 3, 4, 5, 6, 7, 8], method: 'rotating-constant' }))
+      .toThrow(expect.objectContaining({ code: 'progress-too-large', message: 'Progressing chambers 1, 2, 3, 4, 5, 6, 7, 8 gives 38,263,752 keys; set a limit of at most 1,000,000.' }));
+    expect(progressKeys(big, { topMaster: '12345678', progress: [1, 2, 3, 4, 5, 6, 7, 8], method: 'rotating-constant', limit: 4 })).toHaveLength(4);
+  });
+
+  test('rotating constant over one chamber is refused; over none it makes nothing', () => {
+    expect(() => progressKeys(sfic6, { topMaster: '246802', progress: [3], method: 'rotating-constant' }))
+      .toThrow(expect.objectContaining({ code: 'progress-constants', message: 'Rotating constant needs at least two chambers to progress (one stays at the master’s cut in each key); choose another chamber.' }));
+    expect(() => progressKeys(sfic6, { topMaster: '246802', progress: [3, 4, 5], method: 'rotating-constant', constants: 3 }))
+      .toThrow(expect.objectContaining({ code: 'progress-constants', message: 'Rotating constant keeps 3 chambers constant per key, but 3 are progressed; keep 1 to 2, or progress more chambers.' }));
+    expect(progressKeys(sfic6, { topMaster: '246802', progress: [], method: 'rotating-constant' })).toEqual([]);
+  });
+
+  test('the method left out is total position progression', () => {
+    expect(progressKeys(sfic6, { topMaster: '246802', progress: [5, 6], method: 'total-position' }))
+      .toEqual(progressKeys(sfic6, { topMaster: '246802', progress: [5, 6] }));
+  });
+
+  test('a fractional or out-of-range chamber is refused by name; duplicates count once', () => {
+    expect(() => progressKeys(sfic6, { topMaster: '246802', progress: [0] })).toThrow(expect.objectContaining({ code: 'progress-chamber', message: 'Chamber 0 is not on this core; choose chambers 1 to 6 to progress.' }));
+    expect(() => progressKeys(sfic6, { topMaster: '246802', progress: [2.5] })).toThrow(expect.objectContaining({ code: 'progress-chamber' }));
+    expect(() => progressKeys(sfic6, { topMaster: '246802', progress: [6], limit: 1.5 })).toThrow(expect.objectContaining({ code: 'progress-limit' }));
+    expect(progressKeys(sfic6, { topMaster: '246802', progress: [6, 6] })).toHaveLength(4);
   });
 });

@@ -3,7 +3,7 @@ import { describe, expect, test } from 'vitest';
 import { hasErrors } from './errors';
 import { keyOperates } from './keyOperates';
 import { pinCore } from './pinCore';
-import { allBittings, keyedCore, smallProfile, text, usualProfile, type KeyedCore } from './testing/arbitraries';
+import { allBittings, keyedCore, runs, smallProfile, text, type KeyedCore, usualProfile } from './testing/arbitraries';
 
 /*
  * Property checks with fast-check as the outside reference. The brute-force side never
@@ -25,7 +25,7 @@ describe('pinCore properties', () => {
       fc.pre(!hasErrors(pinning));
       for (const key of core.operating) expect(keyOperates(pinning, core.profile, key).plug).toBe(true);
       expect(keyOperates(pinning, core.profile, core.control)).toEqual({ plug: false, control: true });
-    }), { numRuns: 400 });
+    }), { numRuns: runs(400) });
   });
 
   test('a random bitting turns the plug exactly when brute force says so', () => {
@@ -42,7 +42,7 @@ describe('pinCore properties', () => {
       const pinning = pin(core);
       fc.pre(pinning.chambers.length > 0);
       expect(keyOperates(pinning, core.profile, bitting).plug).toBe(bruteForceTurns(core, bitting));
-    }), { numRuns: 500 });
+    }), { numRuns: runs(500) });
   });
 
   test('openings count equals the brute-force count over every bitting of a small profile', () => {
@@ -57,7 +57,7 @@ describe('pinCore properties', () => {
       }
       expect(pinning.openingsCount).toBe(turning);
       expect(pinning.openingsCount).toBe(byDefinition);
-    }), { numRuns: 60 });
+    }), { numRuns: runs(60) });
   });
 
   test('every chamber totals the stack whenever the chart has no stack error', () => {
@@ -69,7 +69,7 @@ describe('pinCore properties', () => {
         expect(sum).toBe(core.profile.stackUnits);
         expect(ch.total).toBe(core.profile.stackUnits);
       }
-    }), { numRuns: 400 });
+    }), { numRuns: runs(400) });
   });
 
   test('pinCore never throws, whatever it is given', () => {
@@ -77,6 +77,6 @@ describe('pinCore properties', () => {
     fc.assert(fc.property(usualProfile, fc.array(junk, { maxLength: 4 }), junk, (profile, operating, control) => {
       const pinning = pinCore(profile, { operating, control });
       expect(Array.isArray(pinning.issues)).toBe(true);
-    }), { numRuns: 300 });
+    }), { numRuns: runs(300) });
   });
 });

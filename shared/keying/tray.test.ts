@@ -2,7 +2,11 @@ import fc from 'fast-check';
 import { describe, expect, test } from 'vitest';
 import { pinCore } from './pinCore';
 import { builtInProfiles } from './profiles';
+<<<<<<< HEAD
 import { keyedCore, smallKit, text, usualProfile } from './testing/arbitraries';
+=======
+import { keyedCore, runs, text, usualProfile } from './testing/arbitraries';
+>>>>>>> 197f9b6 (Mutation testing of the engine with StrykerJS (npm run test:mutation): engine tests only, fixed fast-check seed and fewer runs in that mode; more edge tests for placement and progression)
 import { partKinds, trayFor, type SizeCount } from './tray';
 import type { CorePinning, Profile } from './types';
 
@@ -95,6 +99,6 @@ describe('trayFor properties', () => {
       for (const kind of partKinds) {
         expect(tray.perChamber.reduce((n, ch) => n + count(ch[kind]), 0)).toBe(count(tray.totals[kind]));
       }
-    }), { numRuns: 100 });
+    }), { numRuns: runs(100) });
   });
 });

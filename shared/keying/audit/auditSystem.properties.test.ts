@@ -3,7 +3,7 @@ import { describe, expect, test } from 'vitest';
 import { readBitting } from '../bitting';
 import { keyOperates } from '../keyOperates';
 import { pinCore } from '../pinCore';
-import { smallKit, smallProfile, usualProfile } from '../testing/arbitraries';
+import { runs, smallKit, smallProfile, usualProfile } from '../testing/arbitraries';
 import type { Profile } from '../types';
 import { auditSystem } from './auditSystem';
 import type { AuditInput, KeyLevel } from './types';
@@ -90,7 +90,7 @@ describe('auditSystem against independent oracles (fast-check, brute force)', ()
         for (const c of f.cores ?? []) found.add(`${f.code} ${index} ${c}`);
       }
       expect([...found].sort()).toEqual([...bruteAccess(profile, system)].sort());
-    }), { numRuns: 200 });
+    }), { numRuns: runs(200) });
   }, 60_000);
 
   test('duplicates and the control key: keys sharing one readable bitting are named together', () => {
@@ -104,7 +104,7 @@ describe('auditSystem against independent oracles (fast-check, brute force)', ()
       expect(findings.filter((f) => f.code === 'duplicate-bitting').map((f) => (f.keyIds ?? []).join(' ')).sort()).toEqual(expected);
       const asControl = readable.filter((k) => k.bitting.trim() === system.control.trim()).map((k) => k.id);
       expect(findings.filter((f) => f.code === 'control-equals-key').flatMap((f) => f.keyIds ?? [])).toEqual(asControl);
-    }), { numRuns: 200 });
+    }), { numRuns: runs(200) });
   }, 60_000);
 });
 
@@ -123,7 +123,7 @@ describe('auditSystem: the expensive searches', () => {
           expect(reported, `${key.id} in ${core.id}`).toBe(turns && !intended);
         }
       }
-    }), { numRuns: 150 });
+    }), { numRuns: runs(150) });
   }, 60_000);
 
   test('every key that releases a core, other than one cut like the control key, is reported for that core', () => {
@@ -140,6 +140,6 @@ describe('auditSystem: the expensive searches', () => {
           expect(reported, `${key.id} in ${core.id}`).toBe(releases);
         }
       }
-    }), { numRuns: 150 });
+    }), { numRuns: runs(150) });
   }, 60_000);
 });
