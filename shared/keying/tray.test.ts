@@ -2,11 +2,7 @@ import fc from 'fast-check';
 import { describe, expect, test } from 'vitest';
 import { pinCore } from './pinCore';
 import { builtInProfiles } from './profiles';
-<<<<<<< HEAD
-import { keyedCore, smallKit, text, usualProfile } from './testing/arbitraries';
-=======
-import { keyedCore, runs, text, usualProfile } from './testing/arbitraries';
->>>>>>> 197f9b6 (Mutation testing of the engine with StrykerJS (npm run test:mutation): engine tests only, fixed fast-check seed and fewer runs in that mode; more edge tests for placement and progression)
+import { keyedCore, runs, smallKit, text, usualProfile } from './testing/arbitraries';
 import { partKinds, trayFor, type SizeCount } from './tray';
 import type { CorePinning, Profile } from './types';
 

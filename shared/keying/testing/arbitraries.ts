@@ -78,18 +78,17 @@ export function* allBittings(profile: Profile): Generator<number[]> {
 }
 
 /**
-<<<<<<< HEAD
  * A shop whose kit stocks wafers 2..10 only (the old built-in stock), so build-ups over
  * 10 are made of two wafers and their seams can meet the control line.
  */
 export function smallKit(profile: Profile): Profile {
   return { ...profile, id: `${profile.id}-kit10`, label: `${profile.label}, wafers 2-10`, wafers: range(2, 10), topPins: range(3, 13) };
 }
-=======
+
+/**
  * fast-check runs for a property: `n`, or a tenth of it (at least 5) in the mutation run,
  * which marks itself in testing/fixedSeed.ts. Stryker runs the covering tests once per
  * mutant, so the full counts would take hours on a shared machine.
  */
 export const runs = (n: number): number =>
   (globalThis as { cwMutationRun?: boolean }).cwMutationRun ? Math.max(5, Math.ceil(n / 10)) : n;
->>>>>>> 197f9b6 (Mutation testing of the engine with StrykerJS (npm run test:mutation): engine tests only, fixed fast-check seed and fewer runs in that mode; more edge tests for placement and progression)
