@@ -37,6 +37,8 @@ test('the admin previews rotating constant under AA, sees held-back keys and sav
   await expect(page.getByTestId('error-banner')).toContainText('Chamber 1: the master holds it constant');
   await shot(page, 'held-chamber', 'prog-preview');
   await page.getByTestId('prog-chambers').getByText('1', { exact: true }).click();
+  // Unticking the chamber takes its message away with it.
+  await expect(page.getByTestId('progression').getByText('the master holds it constant')).toHaveCount(1);
 
   await page.getByTestId('prog-method').getByText('Rotating constant').click();
   await expect(page.getByTestId('prog-constants')).toBeVisible();
