@@ -147,4 +147,18 @@ describe('stock comes from the profile as it is now', () => {
     const after = pinCore(profile, keys);
     expect(after.issues.some((i) => i.code === 'size-not-stocked' && i.chamber === 1)).toBe(true);
   });
+
+  test('charts come back the same whether computed or reused, and are read-only data', () => {
+    const keys = { operating: ['022244', '024444', '044444'], control: '266666' };
+    const first = pinCore(kit6, keys);
+    const again = pinCore(kit6, keys);
+    const fresh = pinCore({ ...kit6, wafers: [...kit6.wafers] }, keys); // same content, another object
+    expect(again).toEqual(first);
+    expect(fresh).toEqual(first);
+    expect(Object.isFrozen(first.chambers[0])).toBe(true);
+    expect(Object.isFrozen(first.chambers[0]?.buildUp)).toBe(true);
+    // Issues are the caller's own: changing one does not reach the next chart.
+    first.issues[0]!.message = 'changed';
+    expect(pinCore(kit6, keys).issues[0]?.message).not.toBe('changed');
+  });
 });

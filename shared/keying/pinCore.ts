@@ -1,8 +1,8 @@
 import { readBitting } from './bitting';
-import { bitCount, buildUpSeam, controlDepthMask, releasesCore } from './keyOperates';
+import { chamberKey, freezeChamber, profileCache } from './chamberCache';
+import { bitCount, buildUpSeam, controlDepthMask } from './keyOperates';
 import { pinChamber } from './pinChamber';
-import { stockTable } from './stock';
-import { macsBreak, sameProgression } from './rules';
+import { sameProgression } from './rules';
 import type { ChamberPinning, CoreKeys, CorePinning, PinningIssue, Profile } from './types';
 
 /**
@@ -27,51 +27,63 @@ export function pinCore(profile: Profile, keys: CoreKeys): CorePinning {
     const symbol = keys.symbols?.[index];
     return symbol ? `Key ${symbol}` : `Operating key ${index + 1}`;
   };
-  const operating: number[][] = [];
+  // Depths go into one flat scratch table: a row per operating key, then the control key,
+  // then the top master; no array per key.
+  const n = profile.chambers;
+  const count = keys.operating.length;
+  const rows = scratchRows((count + 2) * n);
   let unreadable = false;
-  for (let index = 0; index < keys.operating.length; index++) {
-    const reading = readBitting(profile, keys.operating[index] as string);
-    if (reading.ok) {
-      operating.push(reading.depths);
-    } else {
+  for (let index = 0; index < count; index++) {
+    const text = keys.operating[index] as string;
+    if (!readInto(profile, text, rows, index * n)) {
       unreadable = true;
-      issues.push(withKey(reading, label(index), index));
+      issues.push(withKey(failedReading(profile, text), label(index), index));
     }
   }
-  const controlReading = readBitting(profile, keys.control);
-  if (!controlReading.ok) {
+  const controlRow = count * n;
+  if (!readInto(profile, keys.control, rows, controlRow)) {
     unreadable = true;
-    issues.push(withKey(controlReading, 'Control key'));
+    issues.push(withKey(failedReading(profile, keys.control), 'Control key'));
   }
-  const topReading = keys.topMaster === undefined ? undefined : readBitting(profile, keys.topMaster);
-  if (topReading && !topReading.ok) {
+  const namedTop = keys.topMaster !== undefined;
+  if (namedTop && !readInto(profile, keys.topMaster as string, rows, controlRow + n)) {
     unreadable = true;
-    issues.push(withKey(topReading, 'Top master'));
+    issues.push(withKey(failedReading(profile, keys.topMaster as string), 'Top master'));
   }
-  if (unreadable || !controlReading.ok) return { chambers: [], openingsCount: 0, controlOpeningsCount: 0, issues };
-  const control = controlReading.depths;
-  const topMaster = topReading?.ok ? topReading.depths : (operating[operating.length - 1] as number[]);
+  if (unreadable) return { chambers: [], openingsCount: 0, controlOpeningsCount: 0, issues };
+  const topRow = namedTop ? controlRow + n : (count - 1) * n;
 
-  const stock = stockTable(profile);
-  const chambers: ChamberPinning[] = [];
+  const cache = profileCache(profile);
+  const chambers: ChamberPinning[] = new Array(n);
+  const controlMasks = scratchMasks(n);
   let openingsCount = 1;
   let controlOpeningsCount = 1;
   let controlTurnsPlug = true;
   const extraControl: number[] = [];
-  for (let i = 0; i < profile.chambers; i++) {
-    const depths = distinctAscending(operating, i);
-    const c = control[i] as number;
-    if (!depths.includes(c)) controlTurnsPlug = false;
-    openingsCount *= depths.length;
-    const chamber = pinChamber(stock, i + 1, depths, c, issues);
-    chambers.push(chamber);
-    const releasing = bitCount(controlDepthMask(chamber, profile));
+  for (let i = 0; i < n; i++) {
+    let mask = 0;
+    for (let r = i; r < controlRow; r += n) mask |= 1 << (rows[r] as number);
+    const c = rows[controlRow + i] as number;
+    if (((mask >>> c) & 1) === 0) controlTurnsPlug = false;
+    const id = chamberKey(i, mask, c);
+    let entry = cache.entries.get(id);
+    if (!entry) {
+      const own: PinningIssue[] = [];
+      const chamber = freezeChamber(pinChamber(cache.stock, i + 1, depthsOf(mask), c, own));
+      entry = { chamber, issues: own, controlMask: controlDepthMask(chamber, profile) };
+      cache.entries.set(id, entry);
+    }
+    chambers[i] = entry.chamber;
+    for (const issue of entry.issues) issues.push({ ...issue });
+    openingsCount *= bitCount(mask);
+    const releasing = bitCount(entry.controlMask);
+    controlMasks[i] = entry.controlMask;
     controlOpeningsCount *= releasing;
     if (releasing > 1) extraControl.push(i);
   }
 
-  checkKeys(profile, operating, control, chambers, issues, label);
-  if (topReading?.ok) checkParity(profile, operating, topMaster, issues, label);
+  checkKeys(profile, rows, count, controlMasks, issues, label);
+  if (namedTop) checkParity(profile, rows, count, topRow, issues, label);
   if (controlOpeningsCount > 1) issues.push(controlOpeningsIssue(profile, chambers, extraControl, controlOpeningsCount));
   if (controlTurnsPlug) {
     issues.push({
@@ -79,17 +91,65 @@ export function pinCore(profile: Profile, keys: CoreKeys): CorePinning {
       message: 'The control key has an operating depth in every chamber, so it would turn the plug instead of the sleeve — change the control key so that in at least one chamber its cut is none of the operating depths (better: differ from the top master in every chamber).',
     });
   }
-  for (let i = 0; i < profile.chambers; i++) {
-    if (control[i] === topMaster[i]) {
+  for (let i = 0; i < n; i++) {
+    const c = rows[controlRow + i] as number;
+    if (c === rows[topRow + i]) {
       issues.push({
         code: 'control-shares-top-master', severity: 'warning', chamber: i + 1,
-        message: `Chamber ${i + 1}: the control key has the top master’s depth (${control[i]}) — the usual advice is a control key that differs from the top master in every chamber.`,
+        message: `Chamber ${i + 1}: the control key has the top master’s depth (${c}) — the usual advice is a control key that differs from the top master in every chamber.`,
       });
     }
   }
   // Errors first so the one that blocks loading is the one shown; otherwise chamber order.
   if (issues.length > 1) issues.sort((a, b) => (a.severity === b.severity ? 0 : a.severity === 'error' ? -1 : 1));
   return { chambers, openingsCount, controlOpeningsCount, issues };
+}
+
+/*
+ * Scratch tables reused across calls (pinCore runs to the end without yielding, so one
+ * call never sees another's rows); they only grow.
+ */
+let rowScratch = new Int32Array(64);
+let maskScratch = new Int32Array(8);
+function scratchRows(size: number): Int32Array {
+  if (rowScratch.length < size) rowScratch = new Int32Array(Math.max(size, 2 * rowScratch.length));
+  return rowScratch;
+}
+function scratchMasks(size: number): Int32Array {
+  if (maskScratch.length < size) maskScratch = new Int32Array(size);
+  return maskScratch;
+}
+
+/**
+ * The depths of a bitting into `rows` from `at`, without allocating; false when it cannot
+ * be read (the caller asks readBitting for the message). Accepts exactly what readBitting
+ * accepts: one digit per chamber within the profile's depths, surrounding blanks ignored.
+ */
+function readInto(profile: Profile, text: string, rows: Int32Array, at: number): boolean {
+  if (typeof text !== 'string') return false;
+  const to = text.length;
+  // Trimmed like String.prototype.trim, but only when there may be something to trim.
+  if (to > 0 && (text.charCodeAt(0) <= 32 || text.charCodeAt(to - 1) <= 32 || text.charCodeAt(0) > 126 || text.charCodeAt(to - 1) > 126)) {
+    const t = text.trim();
+    if (t.length !== to) return readInto(profile, t, rows, at);
+  }
+  return readDigits(profile, text, 0, to, rows, at);
+}
+
+/** readBitting's own words for a bitting readInto refused (the two accept the same texts). */
+function failedReading(profile: Profile, text: string): { code: PinningIssue['code']; chamber?: number; message: string } {
+  const reading = readBitting(profile, text);
+  return reading.ok ? { code: 'bitting-not-digit', message: 'The bitting could not be read.' } : reading;
+}
+
+function readDigits(profile: Profile, text: string, from: number, to: number, rows: Int32Array, at: number): boolean {
+  if (to - from !== profile.chambers) return false;
+  for (let i = 0; i < profile.chambers; i++) {
+    const d = text.charCodeAt(from + i) - 48;
+    if (d < 0 || d > 9 || d < profile.minDepth || d > profile.maxDepth) return false;
+    rows[at + i] = d;
+  }
+  return true;
 }
 
 /**
@@ -120,30 +180,32 @@ function joinWords(words: readonly string[]): string {
 /** Checks on whole keys: control selectivity both ways, and the cut limit of each key. */
 function checkKeys(
   profile: Profile,
-  operating: number[][],
-  control: number[],
-  chambers: ChamberPinning[],
+  rows: Int32Array,
+  count: number,
+  controlMasks: Int32Array,
   issues: PinningIssue[],
   labelOf: (index: number) => string,
 ): void {
-  for (let index = 0; index < operating.length; index++) {
-    const depths = operating[index] as number[];
-    if (firstIndexOf(operating, depths) < index) continue; // duplicates are harmless; report once
+  const n = profile.chambers;
+  const controlRow = count * n;
+  for (let index = 0; index < count; index++) {
+    if (firstSameRow(rows, n, index) < index) continue; // duplicates are harmless; report once
+    const at = index * n;
     const label = labelOf(index);
-    if (sameDepths(depths, control)) {
+    if (sameRow(rows, n, at, controlRow)) {
       issues.push({
         code: 'control-equals-operating', severity: 'error', key: index,
         message: `${label} is the control key — it would release the core from its housing; take it off the operating list or choose another control key.`,
       });
-    } else if (releasesCore(chambers, depths, profile.sleeveUnits)) {
+    } else if (releases(controlMasks, rows, n, at)) {
       issues.push({
         code: 'operating-releases-core', severity: 'error', key: index,
         message: `${label} lines up the control shear line in every chamber (the seams of its two-wafer build-ups sit at its cuts), so it would release the core — stock each of those build-ups as one wafer, or choose a control key that, in at least one chamber where it differs from this key, is no deeper than that chamber’s deepest operating cut (one build-up wafer there leaves no seam).`,
       });
     }
-    pushMacs(profile, depths, label, issues, index);
+    pushMacs(profile, rows, at, label, issues, index);
   }
-  pushMacs(profile, control, 'Control key', issues);
+  pushMacs(profile, rows, controlRow, 'Control key', issues);
 }
 
 /**
@@ -151,49 +213,54 @@ function checkKeys(
  * under two-step progression (keying primer). A warning, since the core can still be
  * built (with an odd-sized wafer); entry and progression refuse such keys.
  */
-function checkParity(profile: Profile, operating: number[][], top: number[], issues: PinningIssue[], labelOf: (index: number) => string): void {
+function checkParity(profile: Profile, rows: Int32Array, count: number, topRow: number, issues: PinningIssue[], labelOf: (index: number) => string): void {
   if (profile.step < 2) return;
-  for (let index = 0; index < operating.length; index++) {
-    const depths = operating[index] as number[];
-    if (firstIndexOf(operating, depths) < index) continue;
-    for (let i = 0; i < profile.chambers; i++) {
-      if (sameProgression(profile, depths[i] as number, top[i] as number)) continue;
+  const n = profile.chambers;
+  for (let index = 0; index < count; index++) {
+    if (firstSameRow(rows, n, index) < index) continue;
+    for (let i = 0; i < n; i++) {
+      const d = rows[index * n + i] as number;
+      if (sameProgression(profile, d, rows[topRow + i] as number)) continue;
       issues.push({
         code: 'key-parity', severity: 'warning', chamber: i + 1, key: index,
-        message: `${labelOf(index)}, chamber ${i + 1}: cut ${depths[i]} breaks the top master’s parity there; under ${profile.step}-step progression every key keeps it — recut this key.`,
+        message: `${labelOf(index)}, chamber ${i + 1}: cut ${d} breaks the top master’s parity there; under ${profile.step}-step progression every key keeps it — recut this key.`,
       });
     }
   }
 }
 
-function sameDepths(a: readonly number[], b: readonly number[]): boolean {
-  for (let i = 0; i < a.length; i++) if (a[i] !== b[i]) return false;
-  return a.length === b.length;
+function sameRow(rows: Int32Array, n: number, a: number, b: number): boolean {
+  for (let i = 0; i < n; i++) if (rows[a + i] !== rows[b + i]) return false;
+  return true;
 }
 
-function firstIndexOf(keys: readonly number[][], depths: readonly number[]): number {
-  for (let i = 0; i < keys.length; i++) if (sameDepths(keys[i] as number[], depths)) return i;
-  return -1;
+/** The first operating key (index) cut like key `index`. */
+function firstSameRow(rows: Int32Array, n: number, index: number): number {
+  for (let j = 0; j < index; j++) if (sameRow(rows, n, j * n, index * n)) return j;
+  return index;
 }
 
-function pushMacs(profile: Profile, depths: number[], label: string, issues: PinningIssue[], key?: number): void {
-  const i = macsBreak(profile, depths);
-  if (i < 0) return;
-  const a = depths[i] as number;
-  const b = depths[i + 1] as number;
-  issues.push({
-    code: 'macs-exceeded', severity: 'error', chamber: i + 1, ...(key === undefined ? {} : { key }),
-    message: `${label}: cuts ${a} and ${b} in chambers ${i + 1} and ${i + 2} differ by ${Math.abs(a - b)}, more than the ${profile.maxAdjacentCut} this profile allows — the key cannot be cut; change one of those cuts.`,
-  });
+function pushMacs(profile: Profile, rows: Int32Array, at: number, label: string, issues: PinningIssue[], key?: number): void {
+  for (let i = 0; i + 1 < profile.chambers; i++) {
+    const a = rows[at + i] as number;
+    const b = rows[at + i + 1] as number;
+    if (Math.abs(a - b) <= profile.maxAdjacentCut) continue;
+    issues.push({
+      code: 'macs-exceeded', severity: 'error', chamber: i + 1, ...(key === undefined ? {} : { key }),
+      message: `${label}: cuts ${a} and ${b} in chambers ${i + 1} and ${i + 2} differ by ${Math.abs(a - b)}, more than the ${profile.maxAdjacentCut} this profile allows — the key cannot be cut; change one of those cuts.`,
+    });
+    return;
+  }
 }
 
-/**
- * Distinct depths at position `i` over all keys, ascending. Depths are single digits, so
- * a bit mask does the de-duplication and the sort without allocating.
- */
-function distinctAscending(keys: number[][], i: number): number[] {
-  let mask = 0;
-  for (const key of keys) mask |= 1 << (key[i] as number);
+/** True when every chamber's control line meets a break at the key's depth there. */
+function releases(controlMasks: Int32Array, rows: Int32Array, n: number, at: number): boolean {
+  for (let i = 0; i < n; i++) if ((((controlMasks[i] as number) >>> (rows[at + i] as number)) & 1) === 0) return false;
+  return true;
+}
+
+/** The depths of a bit mask, ascending. */
+function depthsOf(mask: number): number[] {
   const out: number[] = [];
   while (mask !== 0) {
     const low = mask & -mask;

@@ -9,9 +9,10 @@ import { coreIds, coreName, finding, keyRefs, nameList, plural, type Ranked } fr
  */
 export function accessFindings(ctx: AuditContext, turning: number[][]): Ranked[] {
   const keyCount = ctx.system.keys.length;
-  const unintended = new Map<number, number[]>();
-  const fails = new Map<number, number[]>();
-  const disagree = new Map<number, number[]>();
+  // Per key (system order): the cores of each kind, filled in core order.
+  const unintended: (number[] | undefined)[] = new Array(keyCount);
+  const fails: (number[] | undefined)[] = new Array(keyCount);
+  const disagree: (number[] | undefined)[] = new Array(keyCount);
   const turnsMark = new Int32Array(keyCount);
   const pinnedMark = new Int32Array(keyCount);
   const openerMark = new Int32Array(keyCount);
@@ -36,7 +37,7 @@ export function accessFindings(ctx: AuditContext, turning: number[][]): Ranked[]
   for (const [k, cores] of sorted(unintended)) {
     const symbol = ctx.system.keys[k]?.symbol ?? '';
     out.push(finding('unintended-access', k, {
-      message: `Key ${symbol} turns ${plural(cores.length, 'core')} it is not meant to operate: ${nameList(cores.map((c) => coreName(ctx, c)))}.`,
+      message: `Key ${symbol} turns ${plural(cores.length, 'core')} it is not meant to operate: ${nameList(cores.slice(0, 6).map((c) => coreName(ctx, c)), 5, cores.length)}.`,
       advice: 'Recut or retire the key, or re-pin those cores with other master depths so the key’s cuts are not all among their operating depths; if the access is wanted, add the cores to the key’s record.',
       ...keyRefs(ctx, [k]), cores: coreIds(ctx, cores), data: { cores: cores.length },
     }));
@@ -44,7 +45,7 @@ export function accessFindings(ctx: AuditContext, turning: number[][]): Ranked[]
   for (const [k, cores] of sorted(fails)) {
     const symbol = ctx.system.keys[k]?.symbol ?? '';
     out.push(finding('intended-key-fails', k, {
-      message: `Key ${symbol} is meant to operate ${nameList(cores.map((c) => coreName(ctx, c)))} but does not turn ${cores.length === 1 ? 'it' : 'them'}: the core is not pinned for this key.`,
+      message: `Key ${symbol} is meant to operate ${nameList(cores.slice(0, 6).map((c) => coreName(ctx, c)), 5, cores.length)} but does not turn ${cores.length === 1 ? 'it' : 'them'}: the core is not pinned for this key.`,
       advice: 'Add the key to the core’s operating keys and re-pin it, or take the core off the key’s record.',
       ...keyRefs(ctx, [k]), cores: coreIds(ctx, cores), data: { cores: cores.length },
     }));
@@ -52,7 +53,7 @@ export function accessFindings(ctx: AuditContext, turning: number[][]): Ranked[]
   for (const [k, cores] of sorted(disagree)) {
     const symbol = ctx.system.keys[k]?.symbol ?? '';
     out.push(finding('records-disagree', k, {
-      message: `Key ${symbol} and ${nameList(cores.map((c) => coreName(ctx, c)))} disagree: only one of the two records says the key operates the core.`,
+      message: `Key ${symbol} and ${nameList(cores.slice(0, 6).map((c) => coreName(ctx, c)), 5, cores.length)} disagree: only one of the two records says the key operates the core.`,
       advice: 'Correct the key’s list of cores or the core’s list of keys so both say the same.',
       ...keyRefs(ctx, [k]), cores: coreIds(ctx, cores), data: { cores: cores.length },
     }));
@@ -60,12 +61,18 @@ export function accessFindings(ctx: AuditContext, turning: number[][]): Ranked[]
   return out;
 }
 
-function add(map: Map<number, number[]>, k: number, c: number): void {
-  const list = map.get(k);
+function add(byKey: (number[] | undefined)[], k: number, c: number): void {
+  const list = byKey[k];
   if (list) list.push(c);
-  else map.set(k, [c]);
+  else byKey[k] = [c];
 }
 
-function sorted(map: Map<number, number[]>): [number, number[]][] {
-  return [...map].sort((a, b) => a[0] - b[0]);
+/** [key, cores] for every key with cores, ascending by key. */
+function sorted(byKey: (number[] | undefined)[]): [number, number[]][] {
+  const out: [number, number[]][] = [];
+  for (let k = 0; k < byKey.length; k++) {
+    const cores = byKey[k];
+    if (cores) out.push([k, cores]);
+  }
+  return out;
 }

@@ -4,6 +4,7 @@ import { builtInProfiles } from '../profiles';
 import { smallKit } from '../testing/arbitraries';
 import type { Profile } from '../types';
 import { auditSystem } from './auditSystem';
+import { grouped } from './format';
 import type { AuditFinding, AuditInput } from './types';
 
 const sfic6 = builtInProfiles['sfic-6'] as Profile;
@@ -223,5 +224,11 @@ describe('auditSystem: the control shear line', () => {
 
   test('no finding names a key by its position in a list', () => {
     for (const f of auditSystem(smallKit(sfic6), example)) expect(f.message, f.code).not.toMatch(/(Operating|Change) key \d/);
+  });
+});
+
+describe('counts in messages', () => {
+  test('whole numbers read with thousands commas, as en-US writes them (common practice)', () => {
+    for (const n of [0, 7, 999, 1000, 12345, 1234567, -4200]) expect(grouped(n)).toBe(n.toLocaleString('en-US'));
   });
 });

@@ -3,30 +3,55 @@ import { sortCloseGroups, type CloseGroup } from './finders';
 
 /**
  * Change keys differing in at most one position, by hashing: two keys agree everywhere
- * but position p exactly when their bittings with p blanked out are equal. One pass per
- * position, keys × chambers in all, instead of comparing every pair.
+ * but position p exactly when their bittings with p's digit zeroed are equal. One pass per
+ * position over the change keys, into an open-addressing table of typed arrays (no object
+ * per key), instead of comparing every pair.
  */
 export function closeChangeKeysHashed(ctx: AuditContext): CloseGroup[] {
-  const { profile, depths, validKeys, isChange } = ctx;
+  const { profile, depths, validKeys, isChange, byBitting } = ctx;
   const changeKeys = validKeys.filter((k) => isChange[k]);
+  const n = changeKeys.length;
   const groups: CloseGroup[] = [];
-  for (let p = 0; p < profile.chambers; p++) {
-    const buckets = new Map<number, { keys: number[]; depth: number; mixed: boolean }>();
-    for (const k of changeKeys) {
-      const key = depths[k] as number[];
-      // The bitting as a base-11 number with position p set to 10, a digit no cut has.
-      let id = 0;
-      for (let i = 0; i < key.length; i++) id = id * 11 + (i === p ? 10 : (key[i] as number));
-      const d = key[p] as number;
-      const bucket = buckets.get(id);
-      if (!bucket) buckets.set(id, { keys: [k], depth: d, mixed: false });
-      else {
-        bucket.keys.push(k);
-        if (bucket.depth !== d) bucket.mixed = true;
+  if (n < 2) return groups;
+  let bits = 4;
+  while (1 << bits < 2 * n) bits++;
+  const size = 1 << bits;
+  const mask = size - 1;
+  const slotCode = new Int32Array(size);
+  const slotHead = new Int32Array(size);
+  const slotTail = new Int32Array(size);
+  const slotMixed = new Uint8Array(size);
+  const next = new Int32Array(n);
+  const used: number[] = [];
+  for (let p = 0, pow = 10 ** (profile.chambers - 1); p < profile.chambers; p++, pow /= 10) {
+    slotHead.fill(-1);
+    used.length = 0;
+    for (let j = 0; j < n; j++) {
+      const k = changeKeys[j] as number;
+      const d = (depths[k] as number[])[p] as number;
+      const code = (byBitting.codes[k] as number) - d * pow;
+      let s = Math.imul(code, 0x9e3779b1) >>> (32 - bits);
+      while (slotHead[s] !== -1 && slotCode[s] !== code) s = (s + 1) & mask;
+      next[j] = -1;
+      if (slotHead[s] === -1) {
+        slotCode[s] = code;
+        slotHead[s] = j;
+        slotMixed[s] = 0;
+        used.push(s);
+      } else {
+        const first = changeKeys[slotHead[s] as number] as number;
+        if ((depths[first] as number[])[p] !== d) slotMixed[s] = 1;
+        next[slotTail[s] as number] = j;
       }
+      slotTail[s] = j;
     }
     // A bucket of identical bittings is a duplicate, reported as such, not a close pair.
-    for (const b of buckets.values()) if (b.mixed) groups.push({ position: p, keys: b.keys });
+    for (const s of used) {
+      if (!slotMixed[s]) continue;
+      const keys: number[] = [];
+      for (let j = slotHead[s] as number; j !== -1; j = next[j] as number) keys.push(changeKeys[j] as number);
+      groups.push({ position: p, keys });
+    }
   }
   return sortCloseGroups(groups);
 }

@@ -1,5 +1,6 @@
 import { readBitting } from '../bitting';
 import { pinCore } from '../pinCore';
+import { BittingTable } from './bittingTable';
 import type { CorePinning, Profile } from '../types';
 import type { AuditInput, KeyLevel } from './types';
 
@@ -27,15 +28,8 @@ export interface AuditContext {
   /** Index of the top master, -1 when there is none with a readable bitting. */
   topMaster: number;
   isChange: boolean[];
-  /** Valid keys by their bitting as a base-10 number (chamber 1 the highest digit), ascending. */
-  keysByCode: Map<number, number[]>;
-}
-
-/** A bitting as one number, chamber 1 the highest digit; depths are single digits. */
-export function bittingCode(depths: readonly number[]): number {
-  let code = 0;
-  for (const d of depths) code = code * 10 + d;
-  return code;
+  /** Valid keys by bitting (and each key's bitting as a number). */
+  byBitting: BittingTable;
 }
 
 const levelRank: Record<KeyLevel, number> = { 'great-grand-master': 0, 'grand-master': 1, master: 2, change: 3 };
@@ -63,25 +57,28 @@ export function buildContext(profile: Profile, system: AuditInput): AuditContext
 
   const unknownKeys = new Map<number, string[]>();
   const coreKeys = system.cores.map((core, c) => {
-    const found = new Set<number>();
+    const found: number[] = [];
     for (const id of core.operating) {
       const k = keyIndex.get(id);
       if (k === undefined) pushTo(unknownKeys, c, id);
-      else if (depths[k]) found.add(k);
+      else if (depths[k]) found.push(k);
     }
-    return [...found].sort((a, b) => a - b);
+    return ascendingDistinct(found);
   });
 
   const unknownCores = new Map<number, string[]>();
-  const openerSets = system.cores.map(() => new Set<number>());
+  // Keys are visited in ascending order, so each core's list comes out ascending.
+  const openers: number[][] = system.cores.map(() => []);
   system.keys.forEach((key, k) => {
     for (const id of key.opens) {
       const c = coreIndex.get(id);
       if (c === undefined) pushTo(unknownCores, k, id);
-      else if (depths[k]) (openerSets[c] as Set<number>).add(k);
+      else if (depths[k]) {
+        const list = openers[c] as number[];
+        if (list[list.length - 1] !== k) list.push(k);
+      }
     }
   });
-  const openers = openerSets.map((s) => [...s].sort((a, b) => a - b));
 
   const bittingOf = (k: number): string => (system.keys[k]?.bitting ?? '').trim();
   const symbolOf = (k: number): string => system.keys[k]?.symbol ?? '';
@@ -89,19 +86,13 @@ export function buildContext(profile: Profile, system: AuditInput): AuditContext
   const pinnings = coreKeys.map((keys) =>
     pinCore(profile, { operating: keys.map(bittingOf), control: system.control, symbols: keys.map(symbolOf) }),
   );
-  const keysByCode = new Map<number, number[]>();
-  for (const k of validKeys) {
-    const code = bittingCode(depths[k] as number[]);
-    const list = keysByCode.get(code);
-    if (list) list.push(k);
-    else keysByCode.set(code, [k]);
-  }
+  const byBitting = new BittingTable(depths, profile.chambers);
 
   const topMaster = pickTopMaster(system, depths);
   const isChange = system.keys.map((k, i) => i !== topMaster && levelOf(k) === 'change');
   return {
     profile, system, depths, validKeys, control: controlReading.depths,
-    coreKeys, openers, unknownCores, unknownKeys, pinnings, topMaster, isChange, keysByCode,
+    coreKeys, openers, unknownCores, unknownKeys, pinnings, topMaster, isChange, byBitting,
   };
 }
 
@@ -119,6 +110,15 @@ function pickTopMaster(system: AuditInput, depths: (number[] | null)[]): number 
     if (rank < 0 || (rank === 0 && k.opens.length > b.opens.length)) best = i;
   });
   return best;
+}
+
+function ascendingDistinct(list: number[]): number[] {
+  if (list.length < 2) return list;
+  list.sort((a, b) => a - b);
+  let n = 1;
+  for (let i = 1; i < list.length; i++) if (list[i] !== list[n - 1]) list[n++] = list[i] as number;
+  list.length = n;
+  return list;
 }
 
 function pushTo(map: Map<number, string[]>, at: number, id: string): void {

@@ -18,9 +18,10 @@ const buildCodes = new Set<KeyingIssueCode>([
 export function coreFindings(ctx: AuditContext): Ranked[] {
   const out: Ranked[] = [];
   const { system, control, depths } = ctx;
-  const controlText = control.join('');
-
-  const sameAsControl = ctx.validKeys.filter((k) => (depths[k] as number[]).join('') === controlText);
+  let controlCode = 0;
+  for (const d of control) controlCode = controlCode * 10 + d;
+  const sameAsControl: number[] = [];
+  for (let k = ctx.byBitting.first(controlCode); k !== -1; k = ctx.byBitting.next(k)) sameAsControl.push(k);
   if (sameAsControl.length > 0) {
     const refs = keyRefs(ctx, sameAsControl);
     out.push(finding('control-equals-key', sameAsControl[0] as number, {
@@ -54,7 +55,7 @@ export function coreFindings(ctx: AuditContext): Ranked[] {
   });
   if (plugCores.length > 0) {
     out.push(finding('control-turns-plug', 0, {
-      message: `The control key would turn the plug of ${plural(plugCores.length, 'core')}: ${nameList(plugCores.map((c) => coreName(ctx, c)))}.`,
+      message: `The control key would turn the plug of ${plural(plugCores.length, 'core')}: ${nameList(plugCores.slice(0, 6).map((c) => coreName(ctx, c)), 5, plugCores.length)}.`,
       advice: 'Choose a control key whose cut, in at least one chamber of each core, is none of its operating depths (better: differs from the top master in every chamber).',
       cores: coreIds(ctx, plugCores), data: { cores: plugCores.length },
     }));

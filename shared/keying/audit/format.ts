@@ -30,12 +30,15 @@ export function sortFindings(ranked: Ranked[]): AuditFinding[] {
     .map((r) => r.finding);
 }
 
-/** "A, B, C and 4 more": long lists stay readable; the finding carries the full list. */
-export function nameList(names: readonly string[], max = 5): string {
-  if (names.length <= max) {
-    return names.length <= 1 ? (names[0] ?? '') : `${names.slice(0, -1).join(', ')} and ${names[names.length - 1]}`;
+/**
+ * "A, B, C and 4 more": long lists stay readable; the finding carries the full list.
+ * `total` is the length of the whole list when only its first names are passed.
+ */
+export function nameList(names: readonly string[], max = 5, total = names.length): string {
+  if (total <= max) {
+    return total <= 1 ? (names[0] ?? '') : `${names.slice(0, total - 1).join(', ')} and ${names[total - 1]}`;
   }
-  return `${names.slice(0, max).join(', ')} and ${names.length - max} more`;
+  return `${names.slice(0, max).join(', ')} and ${total - max} more`;
 }
 
 export function keyRefs(ctx: AuditContext, keys: readonly number[]): { keys: string[]; keyIds: string[] } {
@@ -55,5 +58,21 @@ export function coreIds(ctx: AuditContext, cores: readonly number[]): string[] {
 }
 
 export function plural(n: number, one: string, many = `${one}s`): string {
-  return `${n.toLocaleString('en-US')} ${n === 1 ? one : many}`;
+  return `${grouped(n)} ${n === 1 ? one : many}`;
+}
+
+/**
+ * A whole number with thousands commas ("12,345"), as toLocaleString('en-US') writes it,
+ * without Intl: the audit writes tens of thousands of counts in a large system.
+ */
+export function grouped(n: number): string {
+  if (!Number.isSafeInteger(n)) return n.toLocaleString('en-US');
+  if (n > -1000 && n < 1000) return String(n);
+  const digits = String(Math.abs(n));
+  let out = '';
+  for (let i = 0; i < digits.length; i++) {
+    if (i > 0 && (digits.length - i) % 3 === 0) out += ',';
+    out += digits[i];
+  }
+  return n < 0 ? `-${out}` : out;
 }

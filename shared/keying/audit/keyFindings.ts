@@ -33,17 +33,15 @@ export function keyFindings(ctx: AuditContext, close: CloseGroup[]): Ranked[] {
     }));
   }
 
-  const byBitting = new Map<string, number[]>();
+  // Each chain of the bitting table with two keys or more is one duplicate group, named
+  // by its first key (chains are ascending).
+  const { byBitting } = ctx;
   for (const k of ctx.validKeys) {
-    const id = (depths[k] as number[]).join('');
-    const list = byBitting.get(id);
-    if (list) list.push(k);
-    else byBitting.set(id, [k]);
-  }
-  for (const keys of byBitting.values()) {
-    if (keys.length < 2) continue;
+    if (byBitting.first(byBitting.codes[k] as number) !== k || byBitting.next(k) === -1) continue;
+    const keys: number[] = [];
+    for (let j = k; j !== -1; j = byBitting.next(j)) keys.push(j);
     const refs = keyRefs(ctx, keys);
-    out.push(finding('duplicate-bitting', keys[0] as number, {
+    out.push(finding('duplicate-bitting', k, {
       message: `Keys ${nameList(refs.keys)} have the same bitting: each operates every core the others do.`,
       advice: 'Give each symbol its own bitting, or keep one symbol and record the others as copies of it.',
       ...refs,
@@ -57,9 +55,11 @@ export function keyFindings(ctx: AuditContext, close: CloseGroup[]): Ranked[] {
     const key = depths[k] as number[];
     const symbol = system.keys[k]?.symbol ?? '';
     if (top && profile.step === 2) {
-      const off: number[] = [];
-      key.forEach((d, i) => { if (!sameProgression(profile, d, top[i] as number)) off.push(i + 1); });
-      if (off.length > 0) {
+      let off: number[] | null = null;
+      for (let i = 0; i < key.length; i++) {
+        if (!sameProgression(profile, key[i] as number, top[i] as number)) (off ??= []).push(i + 1);
+      }
+      if (off) {
         out.push(finding('parity-broken', k, {
           message: `Key ${symbol} breaks the top master’s parity in chamber${off.length === 1 ? '' : 's'} ${off.join(', ')}: a core it shares with a key of the other parity needs an odd-sized wafer there.`,
           advice: 'Under two-step progression cut every key of the system to the top master’s parity (odd or even) in each chamber.',
@@ -94,9 +94,11 @@ function closeFindings(ctx: AuditContext, close: CloseGroup[]): Ranked[] {
   const { profile, depths } = ctx;
   const normal: CloseGroup[] = [];
   for (const group of close) {
-    const cut = (k: number): number => (depths[k] as number[])[group.position] as number;
-    const first = cut(group.keys[0] as number);
-    if (profile.step === 2 && group.keys.every((k) => sameProgression(profile, cut(k), first))) {
+    const p = group.position;
+    const first = (depths[group.keys[0] as number] as number[])[p] as number;
+    let sameParity = profile.step === 2;
+    for (let j = 1; j < group.keys.length && sameParity; j++) sameParity = sameProgression(profile, (depths[group.keys[j] as number] as number[])[p] as number, first);
+    if (sameParity) {
       normal.push(group);
       continue;
     }
@@ -108,10 +110,15 @@ function closeFindings(ctx: AuditContext, close: CloseGroup[]): Ranked[] {
     }));
   }
   if (normal.length > 0) {
-    const involved = [...new Set(normal.flatMap((g) => g.keys))].sort((a, b) => a - b);
-    const lines = normal.slice(0, detailLines).map((g) => `${nameList(keyRefs(ctx, g.keys).keys, 8)}: chamber ${g.position + 1}`);
+    const mark = new Uint8Array(ctx.system.keys.length);
+    for (const g of normal) for (const k of g.keys) mark[k] = 1;
+    const involved: number[] = [];
+    for (let k = 0; k < mark.length; k++) if (mark[k]) involved.push(k);
+    const lines = normal.slice(0, detailLines).map((g) => `${nameList(g.keys.slice(0, 9).map((k) => ctx.system.keys[k]?.symbol ?? ''), 8, g.keys.length)}: chamber ${g.position + 1}`);
     if (normal.length > detailLines) lines.push(`and ${(normal.length - detailLines).toLocaleString('en-US')} more groups`);
-    const chambers = [...new Set(normal.map((g) => g.position + 1))].sort((a, b) => a - b);
+    const chambers: number[] = [];
+    for (const g of normal) if (!chambers.includes(g.position + 1)) chambers.push(g.position + 1);
+    chambers.sort((a, b) => a - b);
     out.push(finding('change-keys-one-apart', 0, {
       message: `${plural(normal.length, 'group')} of change keys (${plural(involved.length, 'key')}) differ in one position only, by two steps or more: the normal minimum of two-step progression, in chamber${chambers.length === 1 ? '' : 's'} ${chambers.join(', ')}.`,
       advice: 'Nothing to fix. Where a worn or miscut key must not work a neighbour’s door (high-security rooms), give those doors change keys two positions apart.',

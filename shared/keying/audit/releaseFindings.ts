@@ -1,5 +1,4 @@
 import type { AuditContext } from './context';
-import { bittingCode } from './context';
 import { coreIds, coreName, finding, keyRefs, nameList, plural, type Ranked } from './format';
 
 /**
@@ -11,11 +10,13 @@ import { coreIds, coreName, finding, keyRefs, nameList, plural, type Ranked } fr
  */
 export function releaseFindings(ctx: AuditContext, releasing: number[][]): Ranked[] {
   const out: Ranked[] = [];
-  const controlCode = bittingCode(ctx.control);
+  let controlCode = 0;
+  for (const d of ctx.control) controlCode = controlCode * 10 + d;
+  const { codes } = ctx.byBitting;
   const byKey = new Map<number, number[]>();
   releasing.forEach((keys, c) => {
     for (const k of keys) {
-      if (bittingCode(ctx.depths[k] as number[]) === controlCode) continue;
+      if (codes[k] === controlCode) continue;
       const list = byKey.get(k);
       if (list) list.push(c);
       else byKey.set(k, [c]);
@@ -24,7 +25,7 @@ export function releaseFindings(ctx: AuditContext, releasing: number[][]): Ranke
   for (const [k, cores] of [...byKey].sort((a, b) => a[0] - b[0])) {
     const refs = keyRefs(ctx, [k]);
     out.push(finding('key-releases-core', k, {
-      message: `Key ${refs.keys[0] ?? ''} lines up the control shear line of ${plural(cores.length, 'core')} it is not the control key of: ${nameList(cores.map((c) => coreName(ctx, c)))}. Whoever holds it can remove ${cores.length === 1 ? 'that core' : 'those cores'}.`,
+      message: `Key ${refs.keys[0] ?? ''} lines up the control shear line of ${plural(cores.length, 'core')} it is not the control key of: ${nameList(cores.slice(0, 6).map((c) => coreName(ctx, c)), 5, cores.length)}. Whoever holds it can remove ${cores.length === 1 ? 'that core' : 'those cores'}.`,
       advice: 'A two-wafer build-up’s seam sits at this key’s cut in every chamber: stock those build-ups as one wafer (or re-pin with a control cut that needs none), or recut and reissue the key.',
       ...refs, cores: coreIds(ctx, cores), data: { cores: cores.length },
     }));
@@ -46,7 +47,7 @@ export function releaseFindings(ctx: AuditContext, releasing: number[][]): Ranke
   if (pinned > 0) {
     const message = more.length === 0
       ? `Control openings: each of the ${plural(pinned, 'pinned core')} releases for the control key alone (every build-up is one wafer or its seam releases no other bitting).`
-      : `Control openings: ${plural(more.length, 'core')} of ${pinned.toLocaleString('en-US')} release for more bittings than the control key (largest ${plural(largest, 'bitting')}, core ${coreName(ctx, largestCore)}): ${nameList(more.map((c) => coreName(ctx, c)))}.`;
+      : `Control openings: ${plural(more.length, 'core')} of ${pinned.toLocaleString('en-US')} release for more bittings than the control key (largest ${plural(largest, 'bitting')}, core ${coreName(ctx, largestCore)}): ${nameList(more.slice(0, 6).map((c) => coreName(ctx, c)), 5, more.length)}.`;
     out.push(finding('control-openings', 0, {
       message,
       advice: more.length === 0
