@@ -1,2 +1,4 @@
 /** Quasar's Dialog plugin on its own, so installLazyDialog can fetch it on first use. */
-export { Dialog } from 'quasar';
+import { Dialog } from 'quasar';
+
+export { Dialog };

@@ -1,2 +1,4 @@
 /** Quasar's menu on its own, fetched by LazyMenu on first use. */
-export { QMenu } from 'quasar';
+import { QMenu } from 'quasar';
+
+export { QMenu };

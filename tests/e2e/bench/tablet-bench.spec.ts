@@ -14,11 +14,11 @@ const sizes = [
 let page: Page;
 
 /** At both sizes: a screenshot, and a real assertion that nothing interactive is under 56 px. */
-async function walk(name: string): Promise<void> {
+async function walk(name: string, fullPage = false): Promise<void> {
   for (const size of sizes) {
     await page.setViewportSize(size);
     await page.waitForTimeout(200);
-    await page.screenshot({ path: `test-results/screenshots/tablet-${name}-${size.width}x${size.height}.png` });
+    await page.screenshot({ path: `test-results/screenshots/tablet-${name}-${size.width}x${size.height}.png`, fullPage });
     expect(await smallTargets(page), `${name} at ${size.width}x${size.height}`).toEqual([]);
   }
   await page.setViewportSize(sizes[0]!);
@@ -51,7 +51,8 @@ test('build a core of a fire-rated work order by touch: marks, must-not-turn rea
 
   await page.getByTestId('open-tray').tap();
   await expect(page.getByTestId('tray')).toBeVisible();
-  await walk('tray');
+  await expect(page.locator('[data-test^="tray-core-CR-"]')).toHaveCount(6); // core by core, beside the totals
+  await walk('tray', true);
   await page.goBack();
 
   const cores = page.locator('[data-test^="core-CR-"]:not([data-test$="-status"]):not([data-test$="-fire"])');
