@@ -1,11 +1,12 @@
 /** Loads one kept packet and its cores' Bench progress from the tablet, for the Bench pages. */
-import { ref, watch, type Ref } from 'vue';
+import { ref, shallowRef, watch, type Ref } from 'vue';
 import type { Packet } from '@shared/schemas/packet';
 import { loadPacket, progressFor, type CoreProgress } from '@/stores/bench';
 
 export function usePacket(workOrderId: Ref<string>) {
-  const packet = ref<Packet | null>(null);
-  const progress = ref<Record<string, CoreProgress | null>>({});
+  // Shallow: a packet is read, never changed in place, and deep proxies over every chart slow each Bench step.
+  const packet = shallowRef<Packet | null>(null);
+  const progress = shallowRef<Record<string, CoreProgress | null>>({});
   const loading = ref(true);
   const missing = ref(false);
 

@@ -14,7 +14,7 @@ export function smallTargets(page: Page, min = 56): Promise<SmallTarget[]> {
     const out: { what: string; width: number; height: number }[] = [];
     const seen = new Set<Element>();
     for (const el of document.querySelectorAll(selector)) {
-      const target = el.matches('input, textarea') ? (el.closest('.q-field__control') ?? el) : el;
+      const target = el.matches('input, textarea') ? (el.closest('.q-field__control, .plain-field__control') ?? el) : el;
       if (seen.has(target)) continue;
       seen.add(target);
       const style = getComputedStyle(target);
