@@ -46,7 +46,7 @@ export async function benchBrowser(base: string): Promise<Record<string, unknown
     counting = false;
     const coreUrl = page.url();
     const sum = (type: string, key: 'raw' | 'gzip') => [...loaded.values()].filter((r) => r.type === type).reduce((n, r) => n + r[key], 0);
-    const bytes = { jsGzipBytes: sum('script', 'gzip'), cssGzipBytes: sum('stylesheet', 'gzip'), jsRawBytes: sum('script', 'raw'), cssRawBytes: sum('stylesheet', 'raw'), files: loaded.size, jsTargetGzipBytes: 250_000 };
+    const bytes = { jsGzipBytes: sum('script', 'gzip'), cssGzipBytes: sum('stylesheet', 'gzip'), jsRawBytes: sum('script', 'raw'), cssRawBytes: sum('stylesheet', 'raw'), files: loaded.size, jsTargetGzipBytes: 150_000 };
     await page.evaluate(async () => (await navigator.serviceWorker.ready).active?.state);
 
     // Cold offline start: a new page with the network off, from the service worker's cache.
@@ -77,8 +77,8 @@ export async function benchBrowser(base: string): Promise<Record<string, unknown
         await cdp.send('Emulation.setCPUThrottlingRate', { rate: 1 });
         return {
           load: bytes,
-          coldOfflineStartToFirstStepMs: stats(cold),
-          stepAt4xThrottling: { ...stats(steps), targetMs: 50 },
+          coldOfflineStartToFirstStepMs: { ...stats(cold), targetMs: 1000 },
+          stepAt4xThrottling: { ...stats(steps), targetMs: 16 },
           note: 'cold start includes the passphrase unlock (PBKDF2-SHA-256, 600,000 iterations) typed at once',
         };
       }
