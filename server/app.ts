@@ -9,6 +9,7 @@ import { errorHandler, notFoundApi } from './errors';
 import { requireAuth } from './middleware/auth';
 import { authRouter } from './routes/auth';
 import { completionsRouter } from './routes/completions';
+import { installsRouter } from './routes/installs';
 import { coresRouter } from './routes/cores';
 import { devRouter } from './routes/dev';
 import { devicesRouter } from './routes/devices';
@@ -84,6 +85,7 @@ export function createApp({ db, config, mailer, smtp, log }: AppDeps): Express {
   api.use(workOrdersRouter(ctx));
   api.use(syncRouter(ctx));
   api.use(completionsRouter(ctx));
+  api.use(installsRouter(ctx));
   api.use(devicesRouter(ctx));
   api.use(notFoundApi);
   app.use('/api', api);

@@ -26,7 +26,7 @@ export function syncRouter(ctx: Ctx): Router {
         deviceRevoked: true,
       });
     }
-    const { response, events } = await landBatch(db, user, input.deviceId, input.records);
+    const { response, events } = await landBatch(db, sealer, user, input.deviceId, input.records);
     // What is still on the tablet after this batch: its outbox count less what just landed.
     const left = input.outbox ? Math.max(0, input.outbox.waiting - response.accepted.length - response.duplicates.length) : response.rejected.length;
     await db('devices').where({ id: input.deviceId }).update({ last_sync_at: db.fn.now(), last_sync_waiting: left });

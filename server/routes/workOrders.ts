@@ -66,7 +66,9 @@ export function workOrdersRouter({ db, sealer, mailer, config }: Ctx): Router {
       .leftJoin('doors as d', 'd.id', 'c.door_id')
       .where('x.work_order_id', id)
       .orderBy('x.position')
-      .select('c.id', 'c.tag', 'c.state', 'd.id as doorId', 'd.label as doorLabel', 'd.fire_rated as fireRated');
+      .leftJoin('doors as pd', 'pd.id', 'c.planned_door_id')
+      // doorId/doorLabel: where the core IS; plannedDoorLabel: where it was planned; doorMismatch: an install elsewhere not yet reviewed (T4).
+      .select('c.id', 'c.tag', 'c.state', 'd.id as doorId', 'd.label as doorLabel', 'd.fire_rated as fireRated', 'pd.label as plannedDoorLabel', db.raw(`exists(select 1 from installs i where i.core_id = c.id and i.door_mismatch and i.reviewed_at is null) as "doorMismatch"`));
     res.json({ workOrder: wo, cores });
   });
 

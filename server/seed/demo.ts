@@ -161,10 +161,12 @@ export async function seedDemo(db: Knex, sealer: Sealer): Promise<void> {
       await trx('installs').insert({ id: installId, core_id: core.id, door_id: core.door_id, removed_core_tag: null, installed_by: bench2, installed_at: installedAt, payload_hash: hashRecord({ clientId: installId, installedAt }) });
       await trx('cores').where({ id: core.id }).update({ state: 'installed' });
     }
-    await trx('work_orders').where({ id: history.id }).update({ status: 'done' });
+    // Planned before its week of history (the server refuses work dated before its work order: reliability.md T5).
+    await trx('work_orders').where({ id: history.id }).update({ status: 'done', created_at: new Date(today.getTime() - 10 * 86400_000) });
 
-    // Two work orders waiting for the demo technician.
-    await createWorkOrder(trx, sealer, { title: 'Aster Hall: second-floor labs', purpose: 'new-building', keySystemId: systemId, assigneeId: tech, dueDate: inDays(2), notes: 'Labs 207-212. Room 212 is a fire-rated stair door.', doors: doorsOf('AH-', 6, 6) }, lead);
-    await createWorkOrder(trx, sealer, { title: 'Cinder Works: lost-key rekey of the service rooms', purpose: 'lost-key-rekey', keySystemId: systemId, assigneeId: tech, dueDate: inDays(1), notes: 'A service-room key was reported lost. Return the removed cores to the shop.', doors: doorsOf('CW-SVC', 0, 3) }, lead);
+    // Two work orders waiting for the demo technician, planned three days ago.
+    const aster = await createWorkOrder(trx, sealer, { title: 'Aster Hall: second-floor labs', purpose: 'new-building', keySystemId: systemId, assigneeId: tech, dueDate: inDays(2), notes: 'Labs 207-212. Room 212 is a fire-rated stair door.', doors: doorsOf('AH-', 6, 6) }, lead);
+    const cinder = await createWorkOrder(trx, sealer, { title: 'Cinder Works: lost-key rekey of the service rooms', purpose: 'lost-key-rekey', keySystemId: systemId, assigneeId: tech, dueDate: inDays(1), notes: 'A service-room key was reported lost. Return the removed cores to the shop.', doors: doorsOf('CW-SVC', 0, 3) }, lead);
+    await trx('work_orders').whereIn('id', [aster.id, cinder.id]).update({ created_at: new Date(today.getTime() - 3 * 86400_000) });
   });
 }

@@ -3,6 +3,8 @@ import type { Knex } from 'knex';
 import type { CompletionQuery } from '../../shared/schemas/completions';
 import { notFound } from '../errors';
 import { whereDays } from './dates';
+import { openPinSizes } from './pinSizes';
+import type { Sealer } from './secrets';
 
 const sortColumn: Record<CompletionQuery['sort'], string> = {
   finishedAt: 'cp.finished_at',
@@ -16,9 +18,14 @@ const sortColumn: Record<CompletionQuery['sort'], string> = {
 
 type Filter = Omit<CompletionQuery, 'sort' | 'order' | 'page' | 'pageSize'>;
 
+/** The core's newest install: where the core IS, which may differ from the door it was built for (T4). */
+const LATEST_INSTALL = `left join lateral (select i.id, i.door_id, d.label, i.installed_at, i.removed_core_tag, i.door_mismatch, i.reviewed_at
+  from installs i join doors d on d.id = i.door_id where i.core_id = cp.core_id order by i.installed_at desc, i.received_at desc limit 1) inst on true`;
+
 function base(db: Knex, f: Filter) {
   const q = db('completions as cp')
-    .leftJoin('work_orders as w', 'w.id', 'cp.work_order_id');
+    .leftJoin('work_orders as w', 'w.id', 'cp.work_order_id')
+    .joinRaw(LATEST_INSTALL);
   return filtered(db, q, f);
 }
 
@@ -54,6 +61,13 @@ const columns = [
   'cp.result',
   'cp.attempt_count as attemptCount',
   'cp.failed_checks as failedChecks',
+  'inst.id as installId',
+  'inst.door_id as installDoorId',
+  'inst.label as installDoorLabel',
+  'inst.installed_at as installedAt',
+  'inst.removed_core_tag as removedCoreTag',
+  'inst.door_mismatch as doorMismatch',
+  'inst.reviewed_at as mismatchReviewedAt',
 ];
 
 const isoRow = (r: Record<string, unknown>) => ({
@@ -61,6 +75,9 @@ const isoRow = (r: Record<string, unknown>) => ({
   startedAt: new Date(r.startedAt as string).toISOString(),
   finishedAt: new Date(r.finishedAt as string).toISOString(),
   receivedAt: new Date(r.receivedAt as string).toISOString(),
+  installedAt: r.installedAt ? new Date(r.installedAt as string).toISOString() : null,
+  mismatchReviewedAt: r.mismatchReviewedAt ? new Date(r.mismatchReviewedAt as string).toISOString() : null,
+  doorMismatch: r.installId ? Boolean(r.doorMismatch) : null,
 });
 
 export async function listCompletions(db: Knex, q: CompletionQuery) {
@@ -82,9 +99,30 @@ export async function* completionRowsForExport(db: Knex, q: CompletionQuery, pag
   }
 }
 
+/**
+ * One completion with its attempts. The per-part pin sizes stay sealed (they rebuild bittings,
+ * T9): each step's size is null here; revealPinSizes() opens them for an audited reveal.
+ */
 export async function getCompletion(db: Knex, id: string) {
-  const row = await base(db, { tz: 0 }).where('cp.id', id).first([...columns, 'cp.attempts', 'cp.notes', 'cp.device_id as deviceId']);
+  const row = await base(db, { tz: 0 }).where('cp.id', id).first([...columns, 'cp.attempts', 'cp.notes', 'cp.device_id as deviceId', db.raw('cp.pin_sizes_enc is not null as "hasPinSizes"')]);
   if (!row) throw notFound('That completion');
-  const install = await db('installs as i').join('doors as d', 'd.id', 'i.door_id').join('users as u', 'u.id', 'i.installed_by').where('i.core_id', row.coreId).orderBy('i.installed_at', 'desc').first('i.id', 'd.label as doorLabel', 'i.installed_at as installedAt', 'u.name as installedBy', 'i.removed_core_tag as removedCoreTag', 'i.notes');
-  return { ...isoRow(row), install: install ? { ...install, installedAt: new Date(install.installedAt).toISOString() } : null };
+  const install = await db('installs as i')
+    .join('doors as d', 'd.id', 'i.door_id')
+    .join('users as u', 'u.id', 'i.installed_by')
+    .leftJoin('doors as pd', 'pd.id', 'i.planned_door_id')
+    .leftJoin('users as r', 'r.id', 'i.reviewed_by')
+    .where('i.core_id', row.coreId)
+    .orderBy([{ column: 'i.installed_at', order: 'desc' }, { column: 'i.received_at', order: 'desc' }])
+    .first('i.id', 'i.door_id as doorId', 'd.label as doorLabel', 'i.installed_at as installedAt', 'u.name as installedBy', 'i.removed_core_tag as removedCoreTag', 'i.notes', 'i.door_mismatch as doorMismatch', 'i.mismatch_reason as mismatchReason', 'pd.label as plannedDoorLabel', 'i.reviewed_at as reviewedAt', 'r.name as reviewedBy');
+  return {
+    ...isoRow(row),
+    install: install ? { ...install, installedAt: new Date(install.installedAt).toISOString(), reviewedAt: install.reviewedAt ? new Date(install.reviewedAt).toISOString() : null } : null,
+  };
+}
+
+/** The attempts with their pin sizes opened: the caller checks the role and audits the read. */
+export async function revealPinSizes(db: Knex, sealer: Sealer, id: string) {
+  const row = (await db('completions').where({ id }).first('attempts', 'pin_sizes_enc')) as { attempts: { steps: { size: number | null }[] }[]; pin_sizes_enc: string | null } | undefined;
+  if (!row) throw notFound('That completion');
+  return openPinSizes(sealer, id, row.attempts, row.pin_sizes_enc);
 }

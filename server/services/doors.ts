@@ -114,6 +114,10 @@ export async function doorHistory(db: Knex, id: string) {
       'u.name as installedBy',
       'i.removed_core_tag as removedCoreTag',
       'i.notes',
+      'i.door_mismatch as doorMismatch',
+      'i.mismatch_reason as mismatchReason',
+      'i.reviewed_at as mismatchReviewedAt',
+      db.raw(`(select pd.label from doors pd where pd.id = i.planned_door_id) as "plannedDoorLabel"`),
       db.raw(`(select u2.name from completions cp join users u2 on u2.id = cp.technician_id where cp.core_id = c.id and cp.result = 'passed' order by cp.finished_at desc limit 1) as "builtBy"`),
       db.raw(`(select cp.finished_at from completions cp where cp.core_id = c.id and cp.result = 'passed' order by cp.finished_at desc limit 1) as "builtAt"`),
     );

@@ -53,7 +53,9 @@ export async function sendPending(deps: Deps, limit = 50): Promise<number> {
       if (!n) return null;
       tried.push(n.id);
       try {
-        await deliver(deps, n.kind, n.ref_id);
+        // Read through the same transaction: a second connection could queue behind a lock
+        // that waits on this one (a TRUNCATE or ALTER), which Postgres cannot see as a deadlock.
+        await deliver({ ...deps, db: trx }, n.kind, n.ref_id);
         await trx('notifications').where({ id: n.id }).update({ sent_at: trx.fn.now(), attempts: trx.raw('attempts + 1'), last_error: null });
         return 'sent';
       } catch (err) {

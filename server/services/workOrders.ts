@@ -108,7 +108,7 @@ export async function createWorkOrder(db: Knex, sealer: Sealer, input: WorkOrder
       .returning(['id', 'number']);
     for (const [position, p] of planned.entries()) {
       const { nextval } = ((await trx.raw(`select nextval('core_tag_seq')::int as nextval`)).rows as { nextval: number }[])[0]!;
-      const [core] = await trx('cores').insert({ tag: `CR-${nextval}`, key_system_id: system.id, door_id: p.doorId, state: 'planned' }).returning('id');
+      const [core] = await trx('cores').insert({ tag: `CR-${nextval}`, key_system_id: system.id, door_id: p.doorId, planned_door_id: p.doorId, state: 'planned' }).returning('id');
       await trx('core_keys').insert(p.chain.map((k) => ({ core_id: core.id, key_id: k.id })));
       await trx('work_order_cores').insert({ work_order_id: wo.id, core_id: core.id, position });
     }

@@ -36,6 +36,15 @@ export const CompletionRow = z.object({
   result: z.enum(['passed', 'failed']),
   attemptCount: z.number(),
   failedChecks: z.number(),
+  /** The core's newest install: where it IS (doorLabel above is the door it was built for). Null when not installed. */
+  installId: Id.nullable(),
+  installDoorId: Id.nullable(),
+  installDoorLabel: z.string().nullable(),
+  installedAt: z.string().nullable(),
+  removedCoreTag: z.string().nullable(),
+  /** Installed in another door than the planned one (the technician gave a reason); null when not installed. */
+  doorMismatch: z.boolean().nullable(),
+  mismatchReviewedAt: z.string().nullable(),
 });
 export type CompletionRow = z.infer<typeof CompletionRow>;
 

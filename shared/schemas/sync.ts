@@ -64,6 +64,8 @@ export const InstallRecord = z.strictObject({
   removedCoreTag: Text(24, 'the removed core tag').nullable(),
   installedAt: IsoDateTime,
   notes: Notes(1000, 'the notes').optional(),
+  /** Why the core goes into another door than the planned one; required then (the office reviews it). */
+  mismatchReason: Notes(500, 'the reason').optional(),
 });
 export type InstallRecord = z.infer<typeof InstallRecord>;
 

@@ -4,6 +4,8 @@
 import { randomUUID } from 'node:crypto';
 import { parse as parseCsv } from 'csv-parse/sync';
 import { afterAll, beforeAll, describe, expect, test } from 'vitest';
+import type { Packet } from '../../shared/schemas/packet';
+import { completionFor } from './factories';
 import { countRows, startHarness, type Harness } from './harness';
 
 interface Row {
@@ -38,17 +40,6 @@ const deviceId = randomUUID();
 const mine = { c1: randomUUID(), c2: randomUUID(), c3: randomUUID() };
 let myDoorIds: string[] = [];
 
-function attempt(at: string, result: 'passed' | 'failed', symbol: string) {
-  return {
-    n: 1,
-    startedAt: at,
-    finishedAt: at,
-    result,
-    steps: [{ kind: 'bottom', chamber: 1, size: 4, at }],
-    keyChecks: [{ phase: 'before-cap', role: 'change', symbol, result, ...(result === 'failed' ? { note: 'would not turn' } : {}), at }],
-  };
-}
-
 beforeAll(async () => {
   h = await startHarness({}, { demo: true });
   [lead, tech] = await Promise.all([h.tokenFor('supervisor'), h.tokenFor('technician')]);
@@ -64,13 +55,15 @@ beforeAll(async () => {
   });
   if (wo.status !== 201) throw new Error(`work order: ${wo.status} ${wo.text}`);
   myWoId = wo.json.workOrder.id;
-  const cores = (await h.call('GET', `/api/work-orders/${myWoId}`, { token: tech })).json.cores as { id: string; doorLabel: string }[];
-  const at = (day: number) => `2020-03-${day}T12:00:00.000Z`;
-  const start = (day: number) => `2020-03-${day}T11:40:00.000Z`;
+  // The work order was planned before the 2020 work (the server refuses work dated before its work order: T5).
+  await h.db('work_orders').where({ id: myWoId }).update({ created_at: '2020-03-01T08:00:00Z' });
+  const packet = (await h.call('GET', `/api/work-orders/${myWoId}/packet`, { token: tech })).json.packet as Packet;
+  // Each record ends at noon UTC of its day (the factory's completion ends 16 minutes after it starts).
+  const on = (day: number) => new Date(`2020-03-${day}T11:44:00.000Z`);
   const records = [
-    { clientId: mine.c1, kind: 'completion', coreId: cores[0]!.id, workOrderId: myWoId, startedAt: start(10), finishedAt: at(10), result: 'passed', attempts: [attempt(at(10), 'passed', 'AA1')] },
-    { clientId: mine.c2, kind: 'completion', coreId: cores[1]!.id, workOrderId: myWoId, startedAt: start(11), finishedAt: at(11), result: 'failed', attempts: [attempt(at(11), 'failed', 'AA2')], notes: 'Plug bound at chamber 3; set aside.' },
-    { clientId: mine.c3, kind: 'completion', coreId: cores[2]!.id, workOrderId: myWoId, startedAt: start(12), finishedAt: at(12), result: 'passed', attempts: [attempt(at(12), 'passed', 'AA3')] },
+    { ...completionFor(myWoId, packet.cores[0]!, { at: on(10) }), clientId: mine.c1 },
+    { ...completionFor(myWoId, packet.cores[1]!, { at: on(11), result: 'failed' }), clientId: mine.c2, notes: 'Plug bound at chamber 3; set aside.' },
+    { ...completionFor(myWoId, packet.cores[2]!, { at: on(12) }), clientId: mine.c3 },
   ];
   const sync = await h.call('POST', '/api/sync', { token: tech, body: { deviceId, records } });
   if (sync.status !== 200 || sync.json.accepted.length !== 3) throw new Error(`sync: ${sync.status} ${sync.text}`);
@@ -218,7 +211,7 @@ describe('GET /api/completions: sorting and paging', () => {
 });
 
 describe('GET /api/completions.csv', () => {
-  const columns = ['finishedAt', 'startedAt', 'receivedAt', 'coreTag', 'doorLabel', 'workOrderNumber', 'workOrderTitle', 'technicianName', 'result', 'attemptCount', 'failedChecks', 'id'];
+  const columns = ['finishedAt', 'startedAt', 'receivedAt', 'coreTag', 'doorLabel', 'workOrderNumber', 'workOrderTitle', 'technicianName', 'result', 'attemptCount', 'failedChecks', 'installDoorLabel', 'installedAt', 'removedCoreTag', 'doorMismatch', 'id'];
 
   test('text/csv, a header row and one line per row, in the order of the log (RFC 4180 2.1-2.3 and 3, text/csv)', async () => {
     const res = await h.call('GET', '/api/completions.csv', { token: lead });

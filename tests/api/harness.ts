@@ -55,7 +55,16 @@ let cachedHash: string | undefined;
  */
 export async function resetDatabase(db: Db, opts: { demo?: Sealer } = {}): Promise<void> {
   const tables = (await db('pg_tables').where({ schemaname: 'public' }).whereNot('tablename', 'like', 'knex_%').pluck('tablename')) as string[];
-  if (tables.length) await db.raw(`TRUNCATE ${tables.map((t) => `"${t}"`).join(', ')} RESTART IDENTITY CASCADE`);
+  // The app may still be sending a test's mail in a transaction (services/notifier.ts): a deadlock with it is retried.
+  for (let attempt = 1; tables.length; attempt++) {
+    try {
+      await db.raw(`TRUNCATE ${tables.map((t) => `"${t}"`).join(', ')} RESTART IDENTITY CASCADE`);
+      break;
+    } catch (err) {
+      if ((err as { code?: string }).code !== '40P01' || attempt >= 5) throw err;
+      await new Promise((r) => setTimeout(r, 100 * attempt));
+    }
+  }
   if (opts.demo) return seedDemo(db, opts.demo);
   cachedHash ??= await hashPassword(DEMO_PASSWORD);
   await seedUsers(db, false, cachedHash);

@@ -111,6 +111,9 @@ describe('partial batches', () => {
 describe('core states, installs and mail', () => {
   test('a passed completion caps the core; an install puts it in the door and retires the removed core', async () => {
     const core = packet.cores[0]!;
+    // the door holds an old core on record (T4: only the core on record in that door can be named as removed)
+    const system = await h.db('cores').where({ id: core.id }).first('key_system_id');
+    await h.db('cores').insert({ tag: 'OLD-1', key_system_id: system.key_system_id, door_id: core.door!.id, state: 'installed' });
     const completion = completionFor(packet.workOrder.id, core);
     const install = installFor(core, { removedCoreTag: 'OLD-1' });
     // install listed first: the server lands completions first, so one batch does both
@@ -119,6 +122,7 @@ describe('core states, installs and mail', () => {
     expect(await h.db('cores').where({ id: core.id }).first('state', 'door_id')).toEqual({ state: 'installed', door_id: core.door!.id });
     const row = await h.db('installs').where({ id: install.clientId }).first();
     expect(row).toMatchObject({ core_id: core.id, door_id: core.door!.id, removed_core_tag: 'OLD-1' });
+    expect(await h.db('cores').where({ tag: 'OLD-1' }).first('state')).toEqual({ state: 'retired' });
     expect(await h.db('work_orders').where({ id: packet.workOrder.id }).first('status')).toEqual({ status: 'in-progress' });
   });
 
