@@ -55,6 +55,11 @@ export const DoorHistoryEntry = z.object({
   notes: z.string().nullable(),
   builtBy: z.string().nullable(),
   builtAt: z.string().nullable(),
+  /** Installed here although planned for another door (plannedDoorLabel), for the reason given. */
+  doorMismatch: z.boolean(),
+  mismatchReason: z.string().nullable(),
+  mismatchReviewedAt: z.string().nullable(),
+  plannedDoorLabel: z.string().nullable(),
 });
 export type DoorHistoryEntry = z.infer<typeof DoorHistoryEntry>;
 

@@ -12,6 +12,10 @@ export const WorkOrderCore = z.object({
   doorId: z.uuid().nullable(),
   doorLabel: z.string().nullable(),
   fireRated: z.boolean().nullable(),
+  /** doorLabel is where the core IS; this is the door it was planned for. */
+  plannedDoorLabel: z.string().nullable(),
+  /** Installed in another door than planned, not yet reviewed. */
+  doorMismatch: z.boolean(),
 });
 export type WorkOrderCore = z.infer<typeof WorkOrderCore>;
 export const WorkOrderDetail = z.object({ workOrder: WorkOrder, cores: z.array(WorkOrderCore) });
