@@ -78,6 +78,8 @@ const matrix: Entry[] = [
   { method: 'GET', route: '/api/completions', path: '/api/completions', allow: SUP, ok: 200 },
   { method: 'GET', route: '/api/completions.csv', path: '/api/completions.csv', allow: SUP, ok: 200 },
   { method: 'GET', route: '/api/completions/:id', path: '/api/completions/{completion}', allow: SUP, ok: 200 },
+  { method: 'GET', route: '/api/installs/mismatches', path: '/api/installs/mismatches', allow: SUP, ok: 200 },
+  { method: 'POST', route: '/api/installs/:id/review', path: `/api/installs/${randomUUID()}/review`, allow: SUP, ok: 404, body: {} },
   { method: 'POST', route: '/api/devices/escrow', path: '/api/devices/escrow', allow: ALL, ok: 400, body: {} },
   { method: 'GET', route: '/api/devices', path: '/api/devices', allow: SUP, ok: 200 },
   { method: 'POST', route: '/api/devices/:id/revoke', path: `/api/devices/${randomUUID()}/revoke`, allow: ADM, ok: 404, body: {} },

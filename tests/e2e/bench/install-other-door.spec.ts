@@ -19,22 +19,22 @@ test('a core installed in another door: a stop with a reason on the tablet, a mi
   // A store room on the second floor of Aster Hall keyed to the floor's master: that key turns a lab core.
   const admin = await apiSignIn(request, demo.admin);
   const lead = await apiSignIn(request, demo.supervisor);
-  const { doors } = await apiGet<{ doors: { id: string; label: string; keyId: string; keySystemId: string }[] }>(request, lead, '/api/doors?q=AH-113');
-  const lab = doors.find((d) => d.label === 'AH-113')!;
+  const { doors } = await apiGet<{ doors: { id: string; label: string; keyId: string; keySystemId: string }[] }>(request, lead, '/api/doors?q=AH-313');
+  const lab = doors.find((d) => d.label === 'AH-313')!;
   const { keys } = await apiGet<{ keys: { id: string; symbol: string }[] }>(request, lead, `/api/key-systems/${lab.keySystemId}/keys`);
   const master = keys.find((k) => k.symbol === 'AA')!;
-  const store = await request.post('/api/doors', { headers: bearer(admin), data: { site: 'Quillon Hill College', building: 'Aster Hall', floor: '1', room: '1ST', label: 'AH-1STORE', keySystemId: lab.keySystemId, keyId: master.id } });
+  const store = await request.post('/api/doors', { headers: bearer(admin), data: { site: 'Quillon Hill College', building: 'Aster Hall', floor: '3', room: '3ST', label: 'AH-3STORE', keySystemId: lab.keySystemId, keyId: master.id } });
   expect(store.status(), await store.text()).toBe(201);
   const storeId = ((await store.json()) as { door: { id: string } }).door.id;
   const tech = await apiSignIn(request, demo.technician);
   const created = await request.post('/api/work-orders', {
     headers: bearer(lead),
-    data: { title: 'Aster Hall: store room and lab 113', purpose: 'maintenance', keySystemId: lab.keySystemId, assigneeId: tech.userId, doors: [{ doorId: lab.id, keyId: lab.keyId }, { doorId: storeId, keyId: master.id }] },
+    data: { title: 'Aster Hall: store room and lab 313', purpose: 'maintenance', keySystemId: lab.keySystemId, assigneeId: tech.userId, doors: [{ doorId: lab.id, keyId: lab.keyId }, { doorId: storeId, keyId: master.id }] },
   });
   expect(created.status(), await created.text()).toBe(201);
   const wo = ((await created.json()) as { workOrder: { id: string; number: number } }).workOrder;
   const { cores } = await apiGet<{ cores: { id: string; tag: string; doorLabel: string }[] }>(request, lead, `/api/work-orders/${wo.id}`);
-  const labCore = cores.find((c) => c.doorLabel === 'AH-113')!;
+  const labCore = cores.find((c) => c.doorLabel === 'AH-313')!;
 
   // The tablet, by touch: build the lab core, then take it to the store room instead.
   const tablet = await browser.newContext({ viewport: tablets[0], hasTouch: true, serviceWorkers: 'allow' });
@@ -48,11 +48,11 @@ test('a core installed in another door: a stop with a reason on the tablet, a mi
   await expect(tab.getByTestId('confirm-install')).toBeEnabled();
   await expect(tab.getByTestId('install-other-door')).toHaveCount(0);
   await tab.getByTestId('install-door').tap();
-  await tab.getByRole('option', { name: /AH-1STORE/ }).tap();
+  await tab.getByRole('option', { name: /AH-3STORE/ }).tap();
 
   const stop = tab.getByTestId('install-other-door');
   await expect(stop).toBeVisible();
-  await expect(stop).toContainText(`Core ${labCore.tag} was built for door AH-113, not AH-1STORE`);
+  await expect(stop).toContainText(`Core ${labCore.tag} was built for door AH-313, not AH-3STORE`);
   // A stop, not the brass primary action: the confirm button is rust and waits for a reason.
   const confirm = tab.getByTestId('confirm-install');
   await expect(confirm).toBeDisabled();
@@ -70,12 +70,12 @@ test('a core installed in another door: a stop with a reason on the tablet, a mi
   await tab.getByTestId('use-planned-door').tap();
   await expect(stop).toHaveCount(0);
   await tab.getByTestId('install-door').tap();
-  await tab.getByRole('option', { name: /AH-1STORE/ }).tap();
-  await tab.getByTestId('mismatch-reason').locator('textarea').fill('Lab 113 door is on order; the store room needs a core today');
+  await tab.getByRole('option', { name: /AH-3STORE/ }).tap();
+  await tab.getByTestId('mismatch-reason').locator('textarea').fill('Lab 313 door is on order; the store room needs a core today');
   await expect(confirm).toBeEnabled();
   await shot(tab, 'bench-install-other-door-reason-1280x800');
   await confirm.tap();
-  await expect(tab.getByTestId(`core-${labCore.tag}-status`)).toContainText('AH-1STORE');
+  await expect(tab.getByTestId(`core-${labCore.tag}-status`)).toContainText('AH-3STORE');
   await tab.getByTestId('outbox-status').tap();
   await tab.getByTestId('sync-now').tap();
   await tab.keyboard.press('Escape');
@@ -86,19 +86,19 @@ test('a core installed in another door: a stop with a reason on the tablet, a mi
   await page.setViewportSize(office);
   await signIn(page, demo.supervisor);
   const item = page.getByTestId(`overview-mismatch-${labCore.tag}`);
-  await expect(item).toContainText(`is in AH-1STORE, planned for AH-113`);
+  await expect(item).toContainText(`is in AH-3STORE, planned for AH-313`);
   await shot(page, 'console-overview-mismatch');
   await item.click();
   await expect(page).toHaveURL(new RegExp(`/completions\\?coreId=${labCore.id}`));
   const doorCell = page.getByTestId(`completion-door-${labCore.tag}`);
-  await expect(doorCell).toContainText('AH-1STORE');
-  await expect(doorCell.getByTestId('mismatch-chip')).toContainText('Door mismatch: built for AH-113');
+  await expect(doorCell).toContainText('AH-3STORE');
+  await expect(doorCell.getByTestId('mismatch-chip')).toContainText('Door mismatch: built for AH-313');
   await shot(page, 'console-completion-log-mismatch');
 
   await page.getByTestId(`completion-row-${labCore.tag}`).click();
   const panel = page.getByTestId('completion-panel');
-  await expect(panel.getByTestId('completion-where')).toContainText('Installed in door AH-1STORE · built for AH-113');
-  await expect(panel.getByTestId('mismatch-reason')).toContainText('Lab 113 door is on order');
+  await expect(panel.getByTestId('completion-where')).toContainText('Installed in door AH-3STORE · built for AH-313');
+  await expect(panel.getByTestId('mismatch-reason')).toContainText('Lab 313 door is on order');
   // Pin sizes stay sealed until an audited reveal.
   await expect(panel.getByTestId('steps-1')).not.toContainText('size');
   await shot(page, 'console-completion-detail-mismatch');
@@ -113,10 +113,10 @@ test('a core installed in another door: a stop with a reason on the tablet, a mi
 
   await page.goto(`/doors/${storeId}/history`);
   await expect(page.getByTestId('door-history')).toContainText(labCore.tag);
-  await expect(page.getByTestId('door-history').getByTestId('mismatch-chip')).toContainText('Mismatch reviewed: built for AH-113');
+  await expect(page.getByTestId('door-history').getByTestId('mismatch-chip')).toContainText('Mismatch reviewed: built for AH-313');
   await shot(page, 'console-door-history-mismatch');
   await page.goto(`/work-orders/${wo.id}`);
-  await expect(page.getByTestId(`wo-core-door-${labCore.tag}`)).toHaveText('AH-1STORE');
+  await expect(page.getByTestId(`wo-core-door-${labCore.tag}`)).toHaveText('AH-3STORE');
   await shot(page, 'console-work-order-mismatch');
   await page.goto('/overview');
   await expect(page.getByTestId('overview-mismatches')).toContainText('Door mismatches to review (0)');
