@@ -71,7 +71,7 @@ test('a core installed in another door: a stop with a reason on the tablet, a mi
   await expect(stop).toHaveCount(0);
   await tab.getByTestId('install-door').tap();
   await tab.getByRole('option', { name: /AH-3STORE/ }).tap();
-  await tab.getByTestId('mismatch-reason').locator('textarea').fill('Lab 313 door is on order; the store room needs a core today');
+  await tab.getByTestId('mismatch-reason').fill('Lab 313 door is on order; the store room needs a core today');
   await expect(confirm).toBeEnabled();
   await shot(tab, 'bench-install-other-door-reason-1280x800');
   await confirm.tap();
