@@ -14,6 +14,8 @@ export interface EvidencePlan {
   turns: string[];
   /** Symbols of the system's keys the engine says do not turn this core; null when the plan has no must-not-turn key. */
   mustNotTurn: Set<string> | null;
+  /** How many different must-not-turn keys the plan names (workOrders.mustNotTurnKeys): each must be tried. */
+  mustNotTurnCount: number;
 }
 
 const partWords = { bottom: 'bottom pin', master: 'master wafer', buildUp: 'build-up wafer', top: 'top pin' } as const;
@@ -48,7 +50,11 @@ export function missingForPassed(record: CompletionRecord, plan: EvidencePlan): 
     if (keys.length) missing.push(`key ${keys.join(', ')} turning ${phaseWords[phase]}`);
     if (!passed(phase, (k) => k.role === 'control')) missing.push(`the control key releasing ${phaseWords[phase]}`);
     const outsiders = plan.mustNotTurn;
-    if (outsiders && !passed(phase, (k) => k.role === 'must-not-turn' && outsiders.has(k.symbol))) missing.push(`a key that must not turn, tried ${phaseWords[phase]}`);
+    if (outsiders) {
+      const tried = new Set(last.keyChecks.filter((k) => k.phase === phase && k.result === 'passed' && k.role === 'must-not-turn' && outsiders.has(k.symbol)).map((k) => k.symbol));
+      const want = Math.max(1, plan.mustNotTurnCount);
+      if (tried.size < want) missing.push(`${want === 1 ? 'a key' : `${want - tried.size} of the ${want} keys`} that must not turn, tried ${phaseWords[phase]}`);
+    }
   }
   return missing;
 }

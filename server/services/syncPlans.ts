@@ -8,7 +8,7 @@ import { keyOperates, type CorePinning, type Profile } from '../../shared/keying
 import type { EvidencePlan } from './completionEvidence';
 import { loadSystem, type LoadedSystem } from './keySystems';
 import type { Sealer } from './secrets';
-import { pinningFor } from './workOrders';
+import { mustNotTurnKeys, pinningFor } from './workOrders';
 
 export interface CorePlan extends EvidencePlan {
   system: LoadedSystem;
@@ -31,7 +31,14 @@ export async function loadCorePlans(db: Knex, sealer: Sealer, coreIds: string[])
     const outsiders = system.keys.filter((k) => !mine.has(k.id) && !keyOperates(pinning, system.profile, k.bitting).plug);
     // The packet names a must-not-turn key only when an active one exists (workOrders.keyCheckPlan).
     const hasActiveOutsider = outsiders.some((k) => k.status === 'active');
-    out.set(c.id, { system, profile: system.profile, pinning, turns: chain.map((k) => k.symbol), mustNotTurn: hasActiveOutsider ? new Set(outsiders.map((k) => k.symbol)) : null });
+    out.set(c.id, {
+      system,
+      profile: system.profile,
+      pinning,
+      turns: chain.map((k) => k.symbol),
+      mustNotTurn: hasActiveOutsider ? new Set(outsiders.map((k) => k.symbol)) : null,
+      mustNotTurnCount: hasActiveOutsider ? mustNotTurnKeys(system, chain, pinning).length : 0,
+    });
   }
   return out;
 }

@@ -84,7 +84,7 @@ describe('T3 the server derives the result (ASVS 5 V2 business logic; key contro
     const msg: string = res.json.rejected[0].error.message;
     expect(msg).toMatch(/parts of the chart not loaded/);
     expect(msg).toMatch(/the control key releasing before capping/);
-    expect(msg).toMatch(/a key that must not turn/);
+    expect(msg).toMatch(/that must not turn, tried before capping/);
     expect(msg).toContain(core.keyCheck.find((k) => k.role === 'change')!.symbol);
     expect(await stateOf(core.id)).toBe('planned');
   });
@@ -100,7 +100,16 @@ describe('T3 the server derives the result (ASVS 5 V2 business logic; key contro
     const core = packet.cores[0]!;
     const master = core.keyCheck.find((k) => k.role === 'master')!.symbol;
     const res = await sync([claimPassed(core, (a) => ({ ...a, keyChecks: a.keyChecks.map((k) => (k.role === 'must-not-turn' ? { ...k, symbol: master } : k)) }))]);
-    expect(res.json.rejected[0].error.message).toMatch(/a key that must not turn, tried before capping/);
+    expect(res.json.rejected[0].error.message).toMatch(/that must not turn, tried before capping/);
+  });
+
+  test('every must-not-turn key of the plan is tried: leaving one out is refused', async () => {
+    const core = packet.cores[0]!;
+    const outsiders = core.keyCheck.filter((k) => k.role === 'must-not-turn');
+    expect(outsiders.length).toBeGreaterThanOrEqual(1);
+    const dropped = outsiders[outsiders.length - 1]!.symbol;
+    const res = await sync([claimPassed(core, (a) => ({ ...a, keyChecks: a.keyChecks.filter((k) => k.symbol !== dropped) }))]);
+    expect(res.json.rejected[0].error.message).toMatch(/must not turn, tried before capping/);
   });
 
   test('parts of the wrong size are not the chart: refused naming the chamber', async () => {
