@@ -3,7 +3,7 @@ import multer from 'multer';
 import { z } from 'zod';
 import { auditSystem, progressKeys, KeyingError, type AuditFinding } from '../../shared/keying';
 import { Id, Notes } from '../../shared/schemas/common';
-import { KeyInput, KeySystemInput, KeySystemUpdate, KeyUpdate, ProfileId, ProfileInput, ProgressionInput, type HeldKey } from '../../shared/schemas/records';
+import { KeyInput, KeySystemCreate, KeySystemUpdate, KeyUpdate, ProfileId, ProfileInput, ProgressionInput, type HeldKey } from '../../shared/schemas/records';
 import type { Ctx } from '../context';
 import { badRequest } from '../errors';
 import { actorOf, allow } from '../middleware/auth';
@@ -55,10 +55,10 @@ export function keySystemsRouter({ db, sealer, config }: Ctx): Router {
 
   r.get('/key-systems', allow('supervisor', 'admin'), async (_req, res) => res.json({ keySystems: await listSystems(db) }));
   r.post('/key-systems', allow('admin'), async (req, res) => {
-    const input = parse(KeySystemInput, req.body, 'The key system');
+    const input = parse(KeySystemCreate, req.body, 'The key system');
     const id = await db.transaction(async (trx) => {
       const created = await createSystem(trx, sealer, input);
-      await audit(trx, actorOf(req), 'key-system.created', { type: 'key-system', id: created });
+      await audit(trx, actorOf(req), 'key-system.created', { type: 'key-system', id: created }, { topMaster: input.topMaster?.symbol.toUpperCase() ?? null });
       return created;
     });
     res.status(201).json({ keySystem: await getSystem(db, id) });

@@ -5,7 +5,7 @@
 import { randomUUID } from 'node:crypto';
 import type { Knex } from 'knex';
 import { placementChecker, readBitting, type PlacementProblem, type PlacementSystem, type Profile } from '../../shared/keying';
-import type { KeyInput, KeyLevel, KeySystemInput, KeySystemUpdate, KeyStatus, KeyUpdate } from '../../shared/schemas/records';
+import type { KeyInput, KeyLevel, KeySystemCreate, KeySystemUpdate, KeyStatus, KeyUpdate } from '../../shared/schemas/records';
 import { badRequest, conflict, notFound } from '../errors';
 import type { Sealer } from './secrets';
 import { getProfile } from './profiles';
@@ -112,12 +112,17 @@ export async function getSystem(db: Knex, id: string) {
   return row;
 }
 
-export async function createSystem(db: Knex, sealer: Sealer, input: KeySystemInput): Promise<string> {
+/** The system and, when given, its top master, in one transaction; the key goes through addKeys like any key entered by hand. */
+export async function createSystem(db: Knex, sealer: Sealer, input: KeySystemCreate): Promise<string> {
   const profile = await getProfile(db, input.profileId);
   const control = checkBitting(profile, input.control, 'control');
+  if (input.topMaster) checkBitting(profile, input.topMaster.bitting, 'topMaster.bitting');
   if (await db('key_systems').where({ name: input.name }).first('id')) throw conflict(`A key system named "${input.name}" exists already.`, [{ field: 'name', message: 'already used' }]);
   const id = randomUUID();
-  await db('key_systems').insert({ id, name: input.name, profile_id: profile.id, control_enc: sealer.seal(control, controlContext(id)), notes: input.notes ?? null });
+  await db.transaction(async (trx) => {
+    await trx('key_systems').insert({ id, name: input.name, profile_id: profile.id, control_enc: sealer.seal(control, controlContext(id)), notes: input.notes ?? null });
+    if (input.topMaster) await addKeys(trx, sealer, id, [{ ...input.topMaster, parentId: null, status: 'active', crossKeyed: false }]);
+  });
   return id;
 }
 

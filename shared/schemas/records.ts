@@ -4,6 +4,7 @@
  */
 import { z } from 'zod';
 import { BittingText, Id, IsoDate, IsoDateTime, Name, Notes, Text } from './common';
+import { levelNames } from '../words';
 
 export const KeyLevel = z.enum(['ggm', 'gm', 'master', 'change']);
 export type KeyLevel = z.infer<typeof KeyLevel>;
@@ -23,7 +24,8 @@ export const purposeLabels: Record<WorkOrderPurpose, string> = {
   maintenance: 'Maintenance',
   other: 'Other',
 };
-export const levelLabels: Record<KeyLevel, string> = { ggm: 'Great-grand master', gm: 'Grand master', master: 'Master', change: 'Change key' };
+/** The screens' names for the levels: shared/words.ts. */
+export const levelLabels: Record<KeyLevel, string> = levelNames;
 
 // ---- profiles -------------------------------------------------------------------------
 const Sizes = z.array(z.number().int().min(0).max(30)).min(1, { error: 'stock at least one size' }).max(40);
@@ -54,6 +56,14 @@ export const KeySystemInput = z.strictObject({
   notes: Notes(2000, 'notes').optional(),
 });
 export type KeySystemInput = z.infer<typeof KeySystemInput>;
+/** A new key system may bring its top master (the key every master hangs under) in the same step. */
+export const TopMasterInput = z.strictObject({
+  symbol: z.string().trim().regex(/^[A-Z0-9][A-Z0-9-]{0,23}$/i, { error: 'a key symbol is 1 to 24 letters, digits or dashes, like A' }),
+  level: z.enum(['ggm', 'gm', 'master'], { error: 'the top master is a great-grand master, grand master or master' }),
+  bitting: BittingText,
+});
+export const KeySystemCreate = KeySystemInput.extend({ topMaster: TopMasterInput.optional() });
+export type KeySystemCreate = z.infer<typeof KeySystemCreate>;
 export const KeySystemUpdate = KeySystemInput.partial();
 export type KeySystemUpdate = z.infer<typeof KeySystemUpdate>;
 
@@ -131,19 +141,28 @@ export const Key = z.object({
 export type Key = z.infer<typeof Key>;
 
 // ---- doors -----------------------------------------------------------------------------
-export const DoorInput = z.strictObject({
+const doorFields = {
   site: Name(80, 'the site'),
   building: Name(80, 'the building'),
-  floor: Text(20, 'the floor').default(''),
-  room: Text(40, 'the room').default(''),
+  floor: Text(20, 'the floor'),
+  room: Text(40, 'the room'),
   label: z.string().trim().regex(/^[A-Za-z0-9][A-Za-z0-9 ._/-]{0,39}$/, { error: 'a door label is 1 to 40 letters, digits, spaces, dots, dashes or slashes' }),
-  fireRated: z.boolean().default(false),
+  fireRated: z.boolean({ error: 'fireRated is true or false' }),
   keySystemId: Id.nullable().optional(),
   keyId: Id.nullable().optional(),
+<<<<<<< HEAD
   notes: Notes(1000, 'notes').optional(),
 });
+=======
+  notes: Text(1000, 'notes').optional(),
+};
+export const DoorInput = z.strictObject({ ...doorFields, floor: doorFields.floor.default(''), room: doorFields.room.default(''), fireRated: doorFields.fireRated.default(false) });
+>>>>>>> 389cc81 (Create a key system from Key systems: profile, control key, top master and name in one step)
 export type DoorInput = z.infer<typeof DoorInput>;
-export const DoorUpdate = DoorInput.partial();
+/** `retired: true` takes the door out of lists and new work orders (its history stays); `false` brings it back. */
+// No defaults here: a field left out of a PATCH stays as it is.
+export const DoorUpdate = z.strictObject(doorFields).partial().extend({ retired: z.boolean({ error: 'retired is true or false' }).optional() });
+export type DoorUpdate = z.infer<typeof DoorUpdate>;
 
 export const Door = z.object({
   id: Id,
@@ -158,6 +177,7 @@ export const Door = z.object({
   keySymbol: z.string().nullable(),
   notes: z.string().nullable(),
   currentCoreTag: z.string().nullable(),
+  retiredAt: z.string().nullable(),
 });
 export type Door = z.infer<typeof Door>;
 
@@ -193,6 +213,12 @@ export const WorkOrderDoor = z.strictObject({
   doorId: Id,
   /** The change key the door takes; its masters are added from the key's parents. */
   keyId: Id,
+  /** A second change key that must also open this door (cross-keyed); its masters are not added. */
+  crossKeyId: Id.nullable().optional(),
+});
+export type WorkOrderDoor = z.infer<typeof WorkOrderDoor>;
+export const WorkOrderDoorsAdd = z.strictObject({
+  doors: z.array(WorkOrderDoor).min(1, { error: 'choose at least one door' }).max(500, { error: 'at most 500 doors at once' }),
 });
 export const WorkOrderInput = z.strictObject({
   title: Name(120, 'a title'),

@@ -1,6 +1,6 @@
 /** Key systems and keys. Bittings come only with reveal=1, which the server audits. */
 import { z } from 'zod';
-import { Key, KeySystem, ProgressionPreview, type KeyInput, type KeyUpdate, type ProgressionInput } from '@shared/schemas/records';
+import { Key, KeySystem, ProgressionPreview, type KeyInput, type KeySystemCreate, type KeyUpdate, type ProgressionInput } from '@shared/schemas/records';
 import { auditFindingCodes } from '@shared/keying';
 import { request } from './http';
 import { uploadCsv } from './doors';
@@ -29,6 +29,7 @@ export const SystemAudit = z.object({ findings: z.array(AuditFinding), keys: z.n
 export type SystemAudit = z.infer<typeof SystemAudit>;
 
 export const listKeySystems = async () => (await request('GET', '/api/key-systems', { schema: z.object({ keySystems: z.array(KeySystem) }) })).keySystems;
+export const createKeySystem = async (input: KeySystemCreate) => (await request('POST', '/api/key-systems', { body: input, schema: z.object({ keySystem: KeySystem }) })).keySystem;
 export const getKeySystem = async (id: string, show = false) => (await request('GET', `/api/key-systems/${id}${reveal(show)}`, { schema: z.object({ keySystem: KeySystem }) })).keySystem;
 export const listKeys = async (id: string, show = false) => (await request('GET', `/api/key-systems/${id}/keys${reveal(show)}`, { schema: z.object({ keys: z.array(Key) }) })).keys;
 export const addKeys = async (id: string, keys: KeyInput[]) => (await request('POST', `/api/key-systems/${id}/keys`, { body: { keys }, schema: z.object({ ids: z.array(z.uuid()) }) })).ids;

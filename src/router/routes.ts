@@ -30,6 +30,7 @@ const consoleRoutes: RouteRecordRaw[] = [
   { path: 'work-orders/:id/tags', name: 'workOrders.tags', component: () => import('@/pages/PrintTagsPage.vue'), meta: { roles: office, title: 'Core tags' } },
   { path: 'completions', name: 'completions.list', component: () => import('@/pages/CompletionLogPage.vue'), meta: { roles: office, title: 'Completion log' } },
   { path: 'key-systems', name: 'keySystems.list', component: () => import('@/pages/KeySystemsPage.vue'), meta: { roles: office, title: 'Key systems' } },
+  { path: 'key-systems/new', name: 'keySystems.new', component: () => import('@/pages/KeySystemNewPage.vue'), meta: { roles: admin, title: 'New key system' } },
   { path: 'key-systems/:id', name: 'keySystems.detail', component: () => import('@/pages/KeySystemDetailPage.vue'), meta: { roles: office, title: 'Key system' } },
   { path: 'profiles', name: 'profiles.list', component: () => import('@/pages/ProfilesPage.vue'), meta: { roles: office, title: 'Profiles' } },
   { path: 'doors', name: 'doors.list', component: () => import('@/pages/DoorsPage.vue'), meta: { roles: office, title: 'Doors' } },
