@@ -16,6 +16,7 @@ const DoorFilter = z.strictObject({
   building: Text(80, 'building').optional(),
   fireRated: z.enum(['0', '1']).optional(),
   keySystemId: Id.optional(),
+  retired: z.enum(['only', 'all'], { error: 'retired is only or all' }).optional(),
 });
 
 export function doorsRouter({ db }: Ctx): Router {
@@ -50,8 +51,9 @@ export function doorsRouter({ db }: Ctx): Router {
     const id = parse(Id, req.params.id, 'The door id');
     const input = parse(DoorUpdate, req.body, 'The door');
     await db.transaction(async (trx) => {
-      await updateDoor(trx, id, input);
-      await audit(trx, actorOf(req), 'door.updated', { type: 'door', id });
+      const change = await updateDoor(trx, id, input);
+      const action = input.retired === true ? 'door.retired' : input.retired === false ? 'door.restored' : 'door.updated';
+      await audit(trx, actorOf(req), action, { type: 'door', id }, { fields: Object.keys(input).filter((k) => k !== 'retired'), ...(change.retiredCoreTag ? { retiredCore: change.retiredCoreTag } : {}) });
     });
     res.json({ door: await getDoor(db, id) });
   });

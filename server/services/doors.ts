@@ -1,6 +1,7 @@
 /** Doors (openings): where cores go. A door's history comes from the installs table. */
 import type { Knex } from 'knex';
-import type { DoorInput } from '../../shared/schemas/records';
+import type { DoorInput, DoorUpdate } from '../../shared/schemas/records';
+import { naturalCompare } from '../../shared/words';
 import { badRequest, conflict, notFound } from '../errors';
 
 export interface DoorFilter {
@@ -8,6 +9,8 @@ export interface DoorFilter {
   building?: string | undefined;
   fireRated?: boolean | undefined;
   keySystemId?: string | undefined;
+  /** Retired doors are left out unless asked for: 'only' or 'all'. */
+  retired?: 'only' | 'all' | undefined;
 }
 
 export function doorQuery(db: Knex) {
@@ -25,12 +28,13 @@ export function doorQuery(db: Knex) {
       'd.key_id as keyId',
       'k.symbol as keySymbol',
       'd.notes',
+      'd.retired_at as retiredAt',
       db.raw(`(select c.tag from cores c where c.door_id = d.id and c.state = 'installed' order by c.updated_at desc limit 1) as "currentCoreTag"`),
     );
 }
 
 export async function listDoors(db: Knex, f: DoorFilter) {
-  const q = doorQuery(db).orderBy([{ column: 'd.building' }, { column: 'd.label' }]);
+  const q = doorQuery(db);
   if (f.q) {
     const like = `%${f.q.replace(/[%_\\]/g, (c) => `\\${c}`)}%`;
     q.where((w) => w.whereILike('d.label', like).orWhereILike('d.room', like).orWhereILike('d.building', like));
@@ -38,13 +42,19 @@ export async function listDoors(db: Knex, f: DoorFilter) {
   if (f.building) q.where('d.building', f.building);
   if (f.fireRated !== undefined) q.where('d.fire_rated', f.fireRated);
   if (f.keySystemId) q.where('d.key_system_id', f.keySystemId);
-  return q;
+  if (f.retired === 'only') q.whereNotNull('d.retired_at');
+  else if (f.retired !== 'all') q.whereNull('d.retired_at');
+  const rows = (await q) as { building: string; label: string; retiredAt: unknown }[];
+  // Building, then label in natural order (BL-2 before BL-10), as people read them.
+  return rows.sort((a, b) => naturalCompare(a.building, b.building) || naturalCompare(a.label, b.label)).map(isoRetired);
 }
+
+const isoRetired = <T extends { retiredAt: unknown }>(d: T): T => ({ ...d, retiredAt: d.retiredAt ? new Date(d.retiredAt as string).toISOString() : null });
 
 export async function getDoor(db: Knex, id: string) {
   const door = await doorQuery(db).where('d.id', id).first();
   if (!door) throw notFound('That door');
-  return door;
+  return isoRetired(door);
 }
 
 /** A door's key must be in the door's key system; a key given alone brings its system. */
@@ -85,15 +95,42 @@ export async function createDoors(db: Knex, inputs: DoorInput[]): Promise<string
   });
 }
 
-export async function updateDoor(db: Knex, id: string, input: Partial<DoorInput>): Promise<void> {
-  await db.transaction(async (trx) => {
-    const current = await trx('doors').where({ id }).first('id', 'key_system_id');
+/** What a retire did besides the door: the core that was in it, retired with it (the door is gone, so is its core). */
+export interface DoorChange {
+  retiredCoreTag: string | null;
+}
+
+export async function updateDoor(db: Knex, id: string, input: DoorUpdate): Promise<DoorChange> {
+  return db.transaction(async (trx) => {
+    const current = await trx('doors').where({ id }).forUpdate().first('id', 'key_system_id', 'retired_at');
     if (!current) throw notFound('That door');
-    if (input.label && (await trx('doors').whereRaw('lower(label) = ?', [input.label.toLowerCase()]).whereNot({ id }).first('id'))) {
-      throw conflict(`A door labelled "${input.label}" exists already.`, [{ field: 'label', message: 'already used' }]);
+    const { retired, ...fields } = input;
+    let retiredCoreTag: string | null = null;
+    if (retired === true && !current.retired_at) {
+      // A core still to be built for this door belongs to an open work order: take the door out of it first.
+      const planned = await trx('cores as c')
+        .join('work_order_cores as x', 'x.core_id', 'c.id')
+        .join('work_orders as w', 'w.id', 'x.work_order_id')
+        .where('c.door_id', id)
+        .whereIn('c.state', ['planned', 'loaded', 'checked', 'capped'])
+        .whereNotIn('w.status', ['done', 'cancelled'])
+        .first('c.tag', 'w.number');
+      if (planned) throw conflict(`Core ${planned.tag} is planned for this door in work order #${planned.number}: remove the door from that work order or cancel it first.`, [{ field: 'retired', message: 'open work order' }]);
+      const installed = await trx('cores').where({ door_id: id, state: 'installed' }).first('id', 'tag');
+      if (installed) {
+        await trx('cores').where({ id: installed.id }).update({ state: 'retired', updated_at: trx.fn.now() });
+        retiredCoreTag = installed.tag;
+      }
+      await trx('doors').where({ id }).update({ retired_at: trx.fn.now() });
+    } else if (retired === false) {
+      await trx('doors').where({ id }).update({ retired_at: null });
     }
-    const checked = await checkKey(trx, input, current.key_system_id);
+    if (fields.label && (await trx('doors').whereRaw('lower(label) = ?', [fields.label.toLowerCase()]).whereNot({ id }).first('id'))) {
+      throw conflict(`A door labelled "${fields.label}" exists already.`, [{ field: 'label', message: 'already used' }]);
+    }
+    const checked = await checkKey(trx, fields, current.key_system_id);
     await trx('doors').where({ id }).update({ ...row(checked), updated_at: trx.fn.now() });
+    return { retiredCoreTag };
   });
 }
 

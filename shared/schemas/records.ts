@@ -150,14 +150,9 @@ const doorFields = {
   fireRated: z.boolean({ error: 'fireRated is true or false' }),
   keySystemId: Id.nullable().optional(),
   keyId: Id.nullable().optional(),
-<<<<<<< HEAD
   notes: Notes(1000, 'notes').optional(),
-});
-=======
-  notes: Text(1000, 'notes').optional(),
 };
 export const DoorInput = z.strictObject({ ...doorFields, floor: doorFields.floor.default(''), room: doorFields.room.default(''), fireRated: doorFields.fireRated.default(false) });
->>>>>>> 389cc81 (Create a key system from Key systems: profile, control key, top master and name in one step)
 export type DoorInput = z.infer<typeof DoorInput>;
 /** `retired: true` takes the door out of lists and new work orders (its history stays); `false` brings it back. */
 // No defaults here: a field left out of a PATCH stays as it is.

@@ -1,6 +1,6 @@
 /** Doors (openings): list, history and the CSV import (a multipart upload through http.ts's authorizedFetch). */
 import { z } from 'zod';
-import { Door } from '@shared/schemas/records';
+import { Door, type DoorInput, type DoorUpdate } from '@shared/schemas/records';
 import { CoreState } from '@shared/schemas/records';
 import { ApiError, authorizedFetch, errorOf, request } from './http';
 
@@ -42,6 +42,7 @@ export interface DoorFilter {
   building?: string;
   fireRated?: '0' | '1';
   keySystemId?: string;
+  retired?: 'only' | 'all';
 }
 
 export const DoorHistoryEntry = z.object({
@@ -66,5 +67,8 @@ export type DoorHistoryEntry = z.infer<typeof DoorHistoryEntry>;
 export const listDoors = async (filter: DoorFilter = {}) =>
   (await request('GET', `/api/doors${toQuery({ ...filter })}`, { schema: z.object({ doors: z.array(Door) }) })).doors;
 export const getDoor = async (id: string) => (await request('GET', `/api/doors/${id}`, { schema: z.object({ door: Door }) })).door;
+const One = z.object({ door: Door });
+export const createDoor = async (input: DoorInput) => (await request('POST', '/api/doors', { body: input, schema: One })).door;
+export const updateDoor = async (id: string, patch: DoorUpdate) => (await request('PATCH', `/api/doors/${id}`, { body: patch, schema: One })).door;
 export const doorHistory = async (id: string) => (await request('GET', `/api/doors/${id}/history`, { schema: z.object({ history: z.array(DoorHistoryEntry) }) })).history;
 export const importDoors = (file: File, commit: boolean) => uploadCsv('/api/doors/import', file, commit);
