@@ -8,6 +8,7 @@ import type { Knex } from 'knex';
 import { auditSystem, placementChecker, readBitting } from '../../shared/keying';
 import { auditInputFor } from './systemAudit';
 import { textProblem } from '../../shared/schemas/common';
+import { DOOR_COLUMNS, KEY_COLUMNS, LEVEL_WORDS } from '../../shared/csvTemplates';
 import { DoorInput, KeyInput, KeyLevel } from '../../shared/schemas/records';
 import { badRequest } from '../errors';
 import { createDoors } from './doors';
@@ -30,19 +31,24 @@ export interface ImportResult {
   created: number;
 }
 
+/** The answer for a file with a header and no rows yet (a template as downloaded). */
+const nothingYet: ImportResult = { rows: 0, errors: [], warnings: [], preview: [], committed: false, created: 0 };
+
 /** Each record with the line it ends on: the row number a spreadsheet shows (blank lines count). */
 type CsvRow = Record<string, string> & { __row: number };
 
 function readCsv(buffer: Buffer, required: string[], known: string[]): CsvRow[] {
   let records: CsvRow[];
+  let header: string[];
   try {
-    const parsed = parseCsv(buffer, { columns: (h: string[]) => h.map((c) => c.trim().toLowerCase().replace(/[\s-]+/g, '_')), skip_empty_lines: true, trim: true, bom: true, max_record_size: 4096, info: true }) as { record: Record<string, string>; info: { lines: number } }[];
+    const parsed = parseCsv(buffer, { columns: (h: string[]) => h.map((c) => c.trim().toLowerCase().replace(/[\s-]+/g, '_')), skip_empty_lines: true, comment: '#', comment_no_infix: true, trim: true, bom: true, max_record_size: 4096, info: true }) as { record: Record<string, string>; info: { lines: number } }[];
     records = parsed.map(({ record, info }) => ({ ...record, __row: info.lines }) as CsvRow);
+    header = headerOf(buffer);
   } catch (err) {
     throw badRequest(`The file is not readable CSV: ${(err as Error).message}. Save it as CSV (comma-separated, UTF-8) with a header row.`);
   }
-  if (!records.length) throw badRequest('The file has a header but no rows.');
-  const header = Object.keys(records[0]!).filter((k) => k !== '__row');
+  // A template as downloaded (header and # lines only) is readable; it just has nothing to add yet.
+  if (!records.length && !header.length) throw badRequest('The file has no header row. Start with the template: download it beside the import.');
   const missing = required.filter((c) => !header.includes(c));
   if (missing.length) throw badRequest(`The header lacks the column(s) ${missing.join(', ')}. Expected columns: ${known.join(', ')}.`, missing.map((c) => ({ field: c, message: 'missing column' })));
   const unknown = header.filter((c) => !known.includes(c));
@@ -71,9 +77,14 @@ function cellProblems(records: CsvRow[]): { errors: RowError[]; bad: Set<number>
   return { errors, bad };
 }
 
+function headerOf(buffer: Buffer): string[] {
+  const first = parseCsv(buffer, { to: 1, bom: true, trim: true, skip_empty_lines: true, comment: '#', comment_no_infix: true, relax_column_count: true }) as string[][];
+  return (first[0] ?? []).map((c) => c.trim().toLowerCase().replace(/[\s-]+/g, '_'));
+}
+
 const yes = (v: string | undefined) => /^(1|y|yes|true|x)$/i.test((v ?? '').trim());
 
-const levelWords: Record<string, KeyLevel> = { ggm: 'ggm', 'great-grand-master': 'ggm', gm: 'gm', 'grand-master': 'gm', master: 'master', m: 'master', change: 'change', cr: 'change', 'change-key': 'change' };
+const levelWords: Record<string, KeyLevel> = LEVEL_WORDS;
 
 /**
  * The system audit run with the new keys added: a new key whose every cut is among an
@@ -118,11 +129,11 @@ function hierarchyErrors(system: LoadedSystem, rows: (KeyInput & { parentSymbol:
   return out;
 }
 
-const KEY_COLUMNS = ['symbol', 'level', 'parent', 'bitting', 'status', 'cross_keyed', 'notes'];
 
 export async function importKeys(db: Knex, sealer: Sealer, systemId: string, file: Buffer, commit: boolean): Promise<ImportResult> {
   const system = await loadSystem(db, sealer, systemId);
-  const records = readCsv(file, ['symbol', 'level', 'bitting'], KEY_COLUMNS);
+  const records = readCsv(file, ['symbol', 'level', 'bitting'], [...KEY_COLUMNS]);
+  if (!records.length) return nothingYet;
   const { errors, bad } = cellProblems(records);
   const existing = new Set(system.keys.map((k) => k.symbol.toUpperCase()));
   const levelOf = new Map(system.keys.map((k) => [k.symbol.toUpperCase(), k.level]));
@@ -177,10 +188,10 @@ export async function importKeys(db: Knex, sealer: Sealer, systemId: string, fil
   return { rows: records.length, errors, warnings, preview, committed: true, created: ids.length };
 }
 
-const DOOR_COLUMNS = ['site', 'building', 'floor', 'room', 'label', 'fire_rated', 'key_system', 'key_symbol', 'notes'];
 
 export async function importDoors(db: Knex, file: Buffer, commit: boolean): Promise<ImportResult> {
-  const records = readCsv(file, ['site', 'building', 'label'], DOOR_COLUMNS);
+  const records = readCsv(file, ['site', 'building', 'label'], [...DOOR_COLUMNS]);
+  if (!records.length) return nothingYet;
   const systems = new Map((await db('key_systems').select('id', 'name')).map((s: { id: string; name: string }) => [s.name.toLowerCase(), s.id]));
   const keys = await db('keys').select('id', 'symbol', 'key_system_id');
   const existing = new Set((await db('doors').pluck('label')).map((l: string) => l.toLowerCase()));
