@@ -1,14 +1,14 @@
 import { Router } from 'express';
 import { z } from 'zod';
 import { Id } from '../../shared/schemas/common';
-import { WorkOrderInput, WorkOrderUpdate } from '../../shared/schemas/records';
+import { WorkOrderDoorsAdd, WorkOrderInput, WorkOrderUpdate } from '../../shared/schemas/records';
 import type { Ctx } from '../context';
 import { badRequest, forbidden } from '../errors';
 import { actorOf, allow } from '../middleware/auth';
 import { parse } from '../middleware/validate';
 import { audit } from '../services/audit';
 import { mails } from '../services/mail';
-import { buildPacket, createWorkOrder, getWorkOrder, iso, pinningFor, updateWorkOrder, workOrderQuery } from '../services/workOrders';
+import { addDoors, buildPacket, createWorkOrder, getWorkOrder, iso, pinningFor, removeCore, updateWorkOrder, workOrderQuery } from '../services/workOrders';
 import { chainOf, loadSystem } from '../services/keySystems';
 
 const ListQuery = z.strictObject({
@@ -68,7 +68,19 @@ export function workOrdersRouter({ db, sealer, mailer, config }: Ctx): Router {
       .orderBy('x.position')
       .leftJoin('doors as pd', 'pd.id', 'c.planned_door_id')
       // doorId/doorLabel: where the core IS; plannedDoorLabel: where it was planned; doorMismatch: an install elsewhere not yet reviewed (T4).
-      .select('c.id', 'c.tag', 'c.state', 'd.id as doorId', 'd.label as doorLabel', 'd.fire_rated as fireRated', 'pd.label as plannedDoorLabel', db.raw(`exists(select 1 from installs i where i.core_id = c.id and i.door_mismatch and i.reviewed_at is null) as "doorMismatch"`));
+      .select(
+        'c.id',
+        'c.tag',
+        'c.state',
+        'd.id as doorId',
+        'd.label as doorLabel',
+        'd.fire_rated as fireRated',
+        'pd.label as plannedDoorLabel',
+        db.raw(`exists(select 1 from installs i where i.core_id = c.id and i.door_mismatch and i.reviewed_at is null) as "doorMismatch"`),
+        // The key symbol stamped on the core: its change key (the lowest level not cross-keyed), and a cross-keyed one.
+        db.raw(`(select k.symbol from core_keys ck join keys k on k.id = ck.key_id where ck.core_id = c.id and not ck.cross_keyed order by array_position(array['change','master','gm','ggm']::text[], k.level::text) limit 1) as "keySymbol"`),
+        db.raw(`(select k.symbol from core_keys ck join keys k on k.id = ck.key_id where ck.core_id = c.id and ck.cross_keyed limit 1) as "crossKeySymbol"`),
+      );
     res.json({ workOrder: wo, cores });
   });
 
@@ -77,12 +89,29 @@ export function workOrdersRouter({ db, sealer, mailer, config }: Ctx): Router {
     const input = parse(WorkOrderUpdate, req.body, 'The work order');
     const { assignedTo } = await db.transaction(async (trx) => {
       const outcome = await updateWorkOrder(trx, id, input);
-      await audit(trx, actorOf(req), 'work-order.updated', { type: 'work-order', id }, { assigneeId: outcome.assignedTo });
+      if (input.status === 'cancelled') await audit(trx, actorOf(req), 'work-order.cancelled', { type: 'work-order', id }, { released: outcome.released });
+      else await audit(trx, actorOf(req), 'work-order.updated', { type: 'work-order', id }, { fields: Object.keys(input), assigneeId: outcome.assignedTo });
       return outcome;
     });
     const workOrder = await getWorkOrder(db, id);
     if (assignedTo) await notifyAssignee(workOrder, assignedTo);
     res.json({ workOrder });
+  });
+
+  /** Adds doors before work starts; their charts are computed like a new order's and refused on any error. */
+  r.post('/work-orders/:id/doors', allow('supervisor', 'admin'), async (req, res) => {
+    const id = parse(Id, req.params.id, 'The work order id');
+    const { doors } = parse(WorkOrderDoorsAdd, req.body, 'The doors');
+    const tags = await addDoors(db, sealer, id, doors);
+    await audit(db, actorOf(req), 'work-order.doors-added', { type: 'work-order', id }, { cores: tags });
+    res.status(201).json({ workOrder: await getWorkOrder(db, id), tags });
+  });
+  r.delete('/work-orders/:id/cores/:coreId', allow('supervisor', 'admin'), async (req, res) => {
+    const id = parse(Id, req.params.id, 'The work order id');
+    const coreId = parse(Id, req.params.coreId, 'The core id');
+    const removed = await removeCore(db, id, coreId);
+    await audit(db, actorOf(req), 'work-order.door-removed', { type: 'work-order', id }, { core: removed.tag, door: removed.doorLabel });
+    res.json({ workOrder: await getWorkOrder(db, id) });
   });
 
   r.get('/work-orders/:id/packet', allow('technician', 'supervisor', 'admin'), async (req, res) => {
@@ -112,10 +141,15 @@ export function workOrdersRouter({ db, sealer, mailer, config }: Ctx): Router {
 
   /** Pinning preview for a door and key before a work order is saved. */
   r.post('/pinning-preview', allow('supervisor', 'admin'), async (req, res) => {
-    const input = parse(z.strictObject({ keySystemId: Id, keyId: Id }), req.body, 'The preview');
+    const input = parse(z.strictObject({ keySystemId: Id, keyId: Id, crossKeyId: Id.nullable().optional() }), req.body, 'The preview');
     const system = await loadSystem(db, sealer, input.keySystemId);
     const chain = chainOf(system.keys, input.keyId);
     if (!chain.length) throw badRequest('That key is not in this key system.', [{ field: 'keyId', message: 'not in this key system' }]);
+    if (input.crossKeyId) {
+      const cross = system.keys.find((k) => k.id === input.crossKeyId);
+      if (!cross) throw badRequest('The cross-keyed key is not in this key system.', [{ field: 'crossKeyId', message: 'not in this key system' }]);
+      if (!chain.some((k) => k.id === cross.id)) chain.push({ ...cross, crossKeyed: true });
+    }
     const pinning = pinningFor(system, chain);
     res.json({ issues: pinning.issues, openingsCount: pinning.openingsCount, controlOpeningsCount: pinning.controlOpeningsCount, chain: chain.map((k) => k.symbol) });
   });

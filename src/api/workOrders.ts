@@ -1,7 +1,7 @@
 /** Work orders: list, create (cores and charts computed by the server), detail, reassign, charts for printing. */
 import { z } from 'zod';
 import { Packet } from '@shared/schemas/packet';
-import { CoreState, WorkOrder, type WorkOrderInput, type WorkOrderStatus, type WorkOrderUpdate } from '@shared/schemas/records';
+import { CoreState, WorkOrder, type WorkOrderDoor, type WorkOrderInput, type WorkOrderStatus, type WorkOrderUpdate } from '@shared/schemas/records';
 import { Role } from '@shared/schemas/auth';
 import { request } from './http';
 
@@ -16,6 +16,8 @@ export const WorkOrderCore = z.object({
   plannedDoorLabel: z.string().nullable(),
   /** Installed in another door than planned, not yet reviewed. */
   doorMismatch: z.boolean(),
+  keySymbol: z.string().nullable().optional(),
+  crossKeySymbol: z.string().nullable().optional(),
 });
 export type WorkOrderCore = z.infer<typeof WorkOrderCore>;
 export const WorkOrderDetail = z.object({ workOrder: WorkOrder, cores: z.array(WorkOrderCore) });
@@ -31,6 +33,16 @@ export const listWorkOrders = async (status?: WorkOrderStatus | 'open') =>
 export const getWorkOrder = (id: string) => request('GET', `/api/work-orders/${id}`, { schema: WorkOrderDetail });
 export const createWorkOrder = async (input: WorkOrderInput) => (await request('POST', '/api/work-orders', { body: input, schema: One })).workOrder;
 export const updateWorkOrder = async (id: string, patch: WorkOrderUpdate) => (await request('PATCH', `/api/work-orders/${id}`, { body: patch, schema: One })).workOrder;
+export const addWorkOrderDoors = async (id: string, doors: WorkOrderDoor[]) => (await request('POST', `/api/work-orders/${id}/doors`, { body: { doors }, schema: One })).workOrder;
+export const removeWorkOrderCore = async (id: string, coreId: string) => (await request('DELETE', `/api/work-orders/${id}/cores/${coreId}`, { schema: One })).workOrder;
+export const PinningPreview = z.object({
+  issues: z.array(z.looseObject({ severity: z.enum(['error', 'warning', 'info']), message: z.string() })),
+  openingsCount: z.number(),
+  chain: z.array(z.string()),
+});
+export type PinningPreview = z.infer<typeof PinningPreview>;
+/** The engine's chart for a door's keys before anything is saved; no depths in the answer. */
+export const previewPinning = (input: { keySystemId: string; keyId: string; crossKeyId?: string }) => request('POST', '/api/pinning-preview', { body: input, schema: PinningPreview });
 /** Charts hold depths: the server audits this read. */
 export const getCharts = async (id: string) => (await request('GET', `/api/work-orders/${id}/charts`, { schema: z.object({ packet: Packet }) })).packet;
 export const listTechnicians = async () => (await request('GET', '/api/technicians', { schema: z.object({ technicians: z.array(Technician) }) })).technicians;
