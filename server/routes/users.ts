@@ -1,25 +1,15 @@
+import { stringify } from 'csv-stringify';
 import { Router } from 'express';
-import { z } from 'zod';
 import { InviteRequest, UserUpdate } from '../../shared/schemas/auth';
-import { Id, IsoDate, Text, TzOffset } from '../../shared/schemas/common';
+import { AuditQuery } from '../../shared/schemas/audit';
+import { Id } from '../../shared/schemas/common';
 import type { Ctx } from '../context';
 import { actorOf, allow } from '../middleware/auth';
 import { parse } from '../middleware/validate';
 import { audit } from '../services/audit';
 import { mails } from '../services/mail';
-import { whereDays } from '../services/dates';
-import { inviteUser, listUsers, updateUser } from '../services/users';
-
-const AuditQuery = z.strictObject({
-  action: Text(60, 'action').optional(),
-  actorId: Id.optional(),
-  targetId: Text(80, 'targetId').optional(),
-  from: IsoDate.optional(),
-  to: IsoDate.optional(),
-  tz: TzOffset,
-  page: z.coerce.number().int().min(1).default(1),
-  pageSize: z.coerce.number().int().min(1).max(200).default(50),
-});
+import { auditColumns, auditQuery, readable } from '../services/auditLog';
+import { inviteUser, listUsers, resendInvitation, updateUser } from '../services/users';
 
 export function usersRouter({ db, mailer, config }: Ctx): Router {
   const r = Router();
@@ -38,6 +28,13 @@ export function usersRouter({ db, mailer, config }: Ctx): Router {
     await mailer.send({ to: input.email, ...mails.invitation(input.name, `${config.publicUrl}/set-password?token=${token}`, req.user!.name) });
     res.status(201).json({ user: (await listUsers(db, userId))[0] });
   });
+  r.post('/users/:id/invitation', allow('admin'), async (req, res) => {
+    const id = parse(Id, req.params.id, 'The user id');
+    const { email, name, token } = await resendInvitation(db, id, req.user!.id);
+    await audit(db, actorOf(req), 'user.invitation-resent', { type: 'user', id });
+    await mailer.send({ to: email, ...mails.invitation(name, `${config.publicUrl}/set-password?token=${token}`, req.user!.name) });
+    res.status(201).json({ user: (await listUsers(db, id))[0] });
+  });
   r.patch('/users/:id', allow('admin'), async (req, res) => {
     const id = parse(Id, req.params.id, 'The user id');
     const input = parse(UserUpdate, req.body, 'The user');
@@ -49,18 +46,36 @@ export function usersRouter({ db, mailer, config }: Ctx): Router {
   });
   r.get('/audit-events', allow('admin'), async (req, res) => {
     const q = parse(AuditQuery, req.query, 'The filter');
-    const base = db('audit_events');
-    if (q.action) base.where('action', 'like', `${q.action.replace(/[%_\\]/g, (c) => `\\${c}`)}%`);
-    if (q.actorId) base.where('actor_id', q.actorId);
-    if (q.targetId) base.where('target_id', q.targetId);
-    whereDays(db, base, 'at', q);
+    const base = auditQuery(db, q);
     const { total } = ((await base.clone().count({ total: '*' })) as { total: number }[])[0]!;
     const rows = await base
-      .orderBy('id', 'desc')
+      .orderBy('e.id', 'desc')
       .limit(q.pageSize)
       .offset((q.page - 1) * q.pageSize)
-      .select('id', 'at', 'actor_id as actorId', 'actor_email as actorEmail', 'action', 'target_type as targetType', 'target_id as targetId', 'ip', 'details');
-    res.json({ rows, total: Number(total), page: q.page, pageSize: q.pageSize });
+      .select(auditColumns);
+    res.json({ rows: await readable(db, rows), total: Number(total), page: q.page, pageSize: q.pageSize });
+  });
+  /** The filtered log as CSV (at most 50,000 rows); the export is itself an audited event. */
+  r.get('/audit-events.csv', allow('admin'), async (req, res) => {
+    const { page: _p, pageSize: _s, ...q } = parse(AuditQuery, req.query, 'The filter');
+    await audit(db, actorOf(req), 'audit.exported', null, { filter: { action: q.action, person: q.actorId, from: q.from, to: q.to } });
+    res.set('Content-Type', 'text/csv; charset=utf-8');
+    res.set('Content-Disposition', `attachment; filename="audit-log-${new Date().toISOString().slice(0, 10)}.csv"`);
+    const columns = ['at', 'actorName', 'actionName', 'target', 'summary', 'ip', 'action', 'id'];
+    // RFC 4180: CRLF between records.
+    const csv = stringify({ header: true, columns, record_delimiter: 'windows' });
+    csv.pipe(res);
+    const base = auditQuery(db, q).orderBy('e.id', 'desc').select(auditColumns);
+    for (let offset = 0; offset < 50_000; offset += 1000) {
+      const rows = await base.clone().limit(1000).offset(offset);
+      for (const row of await readable(db, rows)) {
+        // A cell starting with = + - @ would run as a formula in a spreadsheet: prefix it.
+        const safe = Object.fromEntries(Object.entries(row).map(([k, v]) => [k, typeof v === 'string' && /^[=+\-@\t\r]/.test(v) ? `'${v}` : v]));
+        if (!csv.write(safe)) await new Promise((resolve) => csv.once('drain', resolve));
+      }
+      if (rows.length < 1000) break;
+    }
+    csv.end();
   });
   return r;
 }

@@ -1,21 +1,9 @@
-/** The audit trail (admin): who saw or exported bittings, downloaded packets, changed keys, signed in. */
-import { z } from 'zod';
-import { request } from './http';
+/** The audit trail (admin): names and words from the server; the CSV export is audited there. */
+import { AuditPage } from '@shared/schemas/audit';
+import { authorizedFetch, errorOf, request } from './http';
 import { toQuery } from './doors';
 
-export const AuditEvent = z.object({
-  id: z.union([z.string(), z.number()]),
-  at: z.string(),
-  actorId: z.string().nullable(),
-  actorEmail: z.string().nullable(),
-  action: z.string(),
-  targetType: z.string().nullable(),
-  targetId: z.string().nullable(),
-  ip: z.string().nullable(),
-  details: z.record(z.string(), z.unknown()).nullable(),
-});
-export type AuditEvent = z.infer<typeof AuditEvent>;
-export const AuditPage = z.object({ rows: z.array(AuditEvent), total: z.number(), page: z.number(), pageSize: z.number() });
+export type { AuditEvent } from '@shared/schemas/audit';
 
 export interface AuditFilter {
   action?: string;
@@ -25,4 +13,13 @@ export interface AuditFilter {
   page?: number;
   pageSize?: number;
 }
-export const listAuditEvents = (filter: AuditFilter) => request('GET', `/api/audit-events${toQuery({ ...filter, tz: new Date().getTimezoneOffset() })}`, { schema: AuditPage });
+const tz = () => new Date().getTimezoneOffset();
+export const listAuditEvents = (filter: AuditFilter) => request('GET', `/api/audit-events${toQuery({ ...filter, tz: tz() })}`, { schema: AuditPage });
+
+/** The filtered log as a CSV file (the download itself is logged). */
+export async function exportAuditEvents(filter: AuditFilter): Promise<Blob> {
+  const { page: _p, pageSize: _s, ...rest } = filter;
+  const res = await authorizedFetch(`/api/audit-events.csv${toQuery({ ...rest, tz: tz() })}`, { headers: { Accept: 'text/csv' } });
+  if (!res.ok) throw await errorOf(res);
+  return res.blob();
+}

@@ -1,0 +1,107 @@
+/**
+ * The audit log as people read it: the actor's name, the record named (door BL-101, work order
+ * #12, key AA3 in Quillon Hill College), and the details as a line of words (shared/auditWords.ts).
+ */
+import type { Knex } from 'knex';
+import { actionName, detailLine } from '../../shared/auditWords';
+import { whereDays } from './dates';
+
+export interface AuditFilter {
+  /** Action prefixes, comma-separated. */
+  action?: string | undefined;
+  actorId?: string | undefined;
+  targetId?: string | undefined;
+  from?: string | undefined;
+  to?: string | undefined;
+  tz: number;
+}
+
+interface Row {
+  id: string;
+  at: Date | string;
+  actorId: string | null;
+  actorEmail: string | null;
+  actorName: string | null;
+  action: string;
+  targetType: string | null;
+  targetId: string | null;
+  ip: string | null;
+  details: Record<string, unknown> | null;
+}
+
+export function auditQuery(db: Knex, f: AuditFilter) {
+  const q = db('audit_events as e').leftJoin('users as u', 'u.id', 'e.actor_id');
+  const prefixes = (f.action ?? '').split(',').map((p) => p.trim()).filter(Boolean);
+  if (prefixes.length) q.where((w) => prefixes.forEach((p) => w.orWhere('e.action', 'like', `${p.replace(/[%_\\]/g, (c) => `\\${c}`)}%`)));
+  if (f.actorId) q.where('e.actor_id', f.actorId);
+  if (f.targetId) q.where('e.target_id', f.targetId);
+  whereDays(db, q, 'e.at', f);
+  return q;
+}
+
+export const auditColumns = ['e.id', 'e.at', 'e.actor_id as actorId', 'e.actor_email as actorEmail', 'u.name as actorName', 'e.action', 'e.target_type as targetType', 'e.target_id as targetId', 'e.ip', 'e.details'];
+
+const uuid = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
+const typeWords: Record<string, string> = { 'key-system': 'Key system', key: 'Key', door: 'Door', core: 'Core', 'work-order': 'Work order', 'work-order-packet': 'Packet of work order', user: 'User', profile: 'Profile', device: 'Tablet', completion: 'Completion', 'sync-record': 'A synced record' };
+
+/** Names for every record and user the page's rows mention, fetched once per table. */
+async function namesFor(db: Knex, rows: Row[]): Promise<Map<string, string>> {
+  const ids = (type: string[]) => [...new Set(rows.filter((r) => r.targetType && type.includes(r.targetType) && r.targetId && uuid.test(r.targetId)).map((r) => r.targetId!))];
+  const detailIds = rows.flatMap((r) => Object.values(r.details ?? {}).filter((v): v is string => typeof v === 'string' && uuid.test(v)));
+  const names = new Map<string, string>();
+  const put = (list: { id: string; name: string }[]) => list.forEach((x) => names.set(x.id, x.name));
+  const userIds = [...new Set([...ids(['user']), ...detailIds])];
+  if (userIds.length) put(await db('users').whereIn('id', userIds).select('id', db.raw(`name || ' (' || email || ')' as name`)));
+  if (ids(['key-system']).length) put(await db('key_systems').whereIn('id', ids(['key-system'])).select('id', 'name'));
+  if (ids(['key']).length) put(await db('keys as k').join('key_systems as s', 's.id', 'k.key_system_id').whereIn('k.id', ids(['key'])).select('k.id', db.raw(`k.symbol || ' in ' || s.name as name`)));
+  if (ids(['door']).length) put(await db('doors').whereIn('id', ids(['door'])).select('id', 'label as name'));
+  if (ids(['core']).length) put(await db('cores').whereIn('id', ids(['core'])).select('id', 'tag as name'));
+  if (ids(['work-order', 'work-order-packet']).length) put(await db('work_orders').whereIn('id', ids(['work-order', 'work-order-packet'])).select('id', db.raw(`'#' || number || ' ' || title as name`)));
+  if (ids(['device']).length) put(await db('devices as d').join('users as u', 'u.id', 'd.user_id').whereIn('d.id', ids(['device'])).select('d.id', db.raw(`coalesce(d.label, 'tablet') || ' of ' || u.name as name`)));
+  if (ids(['completion']).length) put(await db('completions as c').join('cores as k', 'k.id', 'c.core_id').whereIn('c.id', ids(['completion'])).select('c.id', db.raw(`'of core ' || k.tag as name`)));
+  return names;
+}
+
+function targetOf(r: Row, names: Map<string, string>): string {
+  if (!r.targetType) return '';
+  const type = typeWords[r.targetType] ?? r.targetType.replace(/-/g, ' ');
+  if (r.targetType === 'profile') return `Profile ${r.targetId}`;
+  if (r.targetType === 'sync-record') return type;
+  const name = r.targetId ? names.get(r.targetId) : undefined;
+  // A record deleted since (a removed core, say) keeps its kind; a bare id is never shown.
+  return name ? `${type} ${name}` : `${type} (no longer on record)`;
+}
+
+export interface ReadableEvent {
+  id: string;
+  at: string;
+  actorId: string | null;
+  actorName: string;
+  action: string;
+  actionName: string;
+  targetType: string | null;
+  targetId: string | null;
+  target: string;
+  ip: string | null;
+  summary: string;
+}
+
+export async function readable(db: Knex, rows: Row[]): Promise<ReadableEvent[]> {
+  const names = await namesFor(db, rows);
+  // Profiles are keyed by their id; show their label.
+  const profileIds = [...new Set(rows.filter((r) => r.targetType === 'profile' && r.targetId).map((r) => r.targetId!))];
+  const labels = new Map<string, string>(profileIds.length ? (await db('profiles').whereIn('id', profileIds).select('id', 'label')).map((p: { id: string; label: string }) => [p.id, p.label]) : []);
+  return rows.map((r) => ({
+    id: String(r.id),
+    at: new Date(r.at).toISOString(),
+    actorId: r.actorId,
+    actorName: r.actorName ?? r.actorEmail ?? 'nobody signed in',
+    action: r.action,
+    actionName: actionName(r.action),
+    targetType: r.targetType,
+    targetId: r.targetId,
+    target: r.targetType === 'profile' ? `Profile ${labels.get(r.targetId ?? '') ?? '(no longer on record)'}` : targetOf(r, names),
+    ip: r.ip,
+    summary: detailLine(r.action, r.details, (id) => names.get(id)?.replace(/ \(.*\)$/, '')),
+  }));
+}

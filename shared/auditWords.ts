@@ -1,0 +1,120 @@
+/**
+ * The audit log in people's words: each action's name, and a line for its details. Used by the
+ * server for the list and the CSV export, and by the screen's action filter. Never raw JSON.
+ */
+export const actionWords: Record<string, string> = {
+  'auth.sign-in': 'Signed in',
+  'auth.sign-in.failed': 'Sign-in failed',
+  'auth.sign-in.locked': 'Sign-in locked out',
+  'auth.sign-out': 'Signed out',
+  'auth.refresh.reused': 'Reused session token refused',
+  'user.invited': 'Invited a user',
+  'user.invitation-resent': 'Resent an invitation',
+  'user.password-set': 'Set a password',
+  'user.updated': 'Changed a user',
+  'user.role-changed': "Changed a user's role",
+  'user.deactivated': 'Deactivated a user',
+  'bittings.viewed': 'Saw bittings',
+  'packet.downloaded': 'Downloaded a work order packet',
+  'completions.exported': 'Exported the completion log',
+  'audit.exported': 'Exported the audit log',
+  'key-system.created': 'Created a key system',
+  'key-system.updated': 'Changed a key system',
+  'key-system.control-changed': 'Changed the control key',
+  'key-system.audited': 'Ran the system audit',
+  'keys.added': 'Added keys',
+  'keys.imported': 'Imported a bitting list',
+  'key.updated': 'Changed a key',
+  'key.bitting-changed': "Changed a key's bitting",
+  'key.retired': 'Retired a key',
+  'key.replaced': 'Replaced a key',
+  'profile.created': 'Created a profile',
+  'profile.updated': 'Changed a profile',
+  'door.created': 'Added a door',
+  'door.updated': 'Changed a door',
+  'door.retired': 'Retired a door',
+  'door.restored': 'Restored a door',
+  'doors.imported': 'Imported doors',
+  'core.updated': 'Changed a core',
+  'core.retired': 'Retired a core',
+  'work-order.created': 'Created a work order',
+  'work-order.updated': 'Changed a work order',
+  'work-order.cancelled': 'Cancelled a work order',
+  'work-order.doors-added': 'Added doors to a work order',
+  'work-order.door-removed': 'Removed a door from a work order',
+  'device.escrow-fetched': 'Recovered a tablet outbox',
+  'device.revoked': 'Revoked a tablet',
+  'sync.batch': 'Synced finished work',
+  'sync.refused-revoked': 'Sync refused: tablet revoked',
+  'access.denied': 'Access refused',
+};
+
+/** "door.retired" → its words; an action not listed yet still reads as words, not a code. */
+export function actionName(action: string): string {
+  return actionWords[action] ?? action.replace(/[.-]+/g, ' ').replace(/^./, (c) => c.toUpperCase());
+}
+
+/** The filter's choices; each value is the action prefixes it covers, comma-separated, as the API takes them. */
+export const actionGroups = [
+  { label: 'Bittings seen', value: 'bittings.' },
+  { label: 'Exports (completion log, audit log)', value: 'completions.exported,audit.exported' },
+  { label: 'Packets downloaded', value: 'packet.' },
+  { label: 'Keys added, imported or changed', value: 'keys.,key.' },
+  { label: 'Key systems', value: 'key-system.' },
+  { label: 'Profiles', value: 'profile.' },
+  { label: 'Doors', value: 'door.,doors.' },
+  { label: 'Work orders', value: 'work-order.' },
+  { label: 'Sign-ins and sign-outs', value: 'auth.' },
+  { label: 'Users and invitations', value: 'user.' },
+  { label: 'Tablets and sync', value: 'device.,sync.' },
+  { label: 'Access refused', value: 'access.denied' },
+] as const;
+
+const whatWords: Record<string, string> = { control: 'the control key', keys: 'the key bittings', charts: 'the pinning charts', 'progression-preview': 'a progression preview' };
+const fieldWords: Record<string, string> = { dueDate: 'due date', assigneeId: 'assignee', fireRated: 'fire rating', keySystemId: 'key system', keyId: 'key', parentId: 'master', crossKeyId: 'cross-keyed key' };
+
+type Value = unknown;
+/** Names for ids found in details (users, mostly), filled in by the server. */
+export type NameOf = (id: string) => string | undefined;
+
+function words(key: string, v: Value, nameOf: NameOf): string | null {
+  if (v === null || v === undefined || v === '') return null;
+  if (Array.isArray(v)) return v.length ? `${key}: ${v.map((x) => (key === 'fields' ? (fieldWords[String(x)] ?? String(x)) : String(x))).join(', ')}` : null;
+  if (typeof v === 'object') {
+    const inner = Object.entries(v as Record<string, Value>)
+      .map(([k, x]) => words(fieldWords[k] ?? k, x, nameOf))
+      .filter(Boolean);
+    return inner.length ? `${key}: ${inner.join('; ')}` : null;
+  }
+  if (typeof v === 'boolean') return `${key}: ${v ? 'yes' : 'no'}`;
+  const s = String(v);
+  return `${key}: ${nameOf(s) ?? s}`;
+}
+
+/** One readable line for an event's details. */
+export function detailLine(action: string, details: Record<string, Value> | null, nameOf: NameOf = () => undefined): string {
+  const d = { ...(details ?? {}) };
+  const parts: string[] = [];
+  if (typeof d.what === 'string') {
+    parts.push(`${whatWords[d.what] ?? d.what}${typeof d.count === 'number' ? ` (${d.count})` : ''}`);
+    delete d.what;
+    delete d.count;
+  }
+  if (Array.isArray(d.fields)) {
+    if (d.fields.length) parts.push(`changed ${d.fields.map((f) => fieldWords[String(f)] ?? String(f)).join(', ')}`);
+    delete d.fields;
+  }
+  if (action === 'work-order.cancelled' && Array.isArray(d.released)) {
+    parts.push(d.released.length ? `released ${d.released.join(', ')}` : 'no core to release');
+    delete d.released;
+  }
+  if ('assigneeId' in d) {
+    if (d.assigneeId) parts.push(`assigned to ${nameOf(String(d.assigneeId)) ?? 'a user'}`);
+    delete d.assigneeId;
+  }
+  for (const [k, v] of Object.entries(d)) {
+    const w = words(fieldWords[k] ?? k.replace(/([a-z])([A-Z])/g, '$1 $2').toLowerCase(), v, nameOf);
+    if (w) parts.push(w);
+  }
+  return parts.join(' · ');
+}
