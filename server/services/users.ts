@@ -27,6 +27,23 @@ export async function inviteUser(db: Knex, input: InviteRequest, by: string): Pr
   });
 }
 
+/**
+ * A new single-use link for someone who has not set a password yet; every earlier link of theirs
+ * dies in the same transaction (marked expired), so only the newest mail works.
+ */
+export async function resendInvitation(db: Knex, userId: string, by: string): Promise<{ email: string; name: string; token: string }> {
+  return db.transaction(async (trx) => {
+    const user = await trx('users').where({ id: userId }).forUpdate().first('id', 'email', 'name', 'active', 'password_hash');
+    if (!user) throw notFound('That user');
+    if (!user.active) throw conflict(`${user.email} is deactivated; reactivate the account before inviting again.`, [{ field: 'active', message: 'deactivated' }]);
+    if (user.password_hash) throw conflict(`${user.email} has set a password already; there is no invitation to resend.`, [{ field: 'hasPassword', message: 'password set' }]);
+    await trx('invitations').where({ user_id: userId }).whereNull('used_at').update({ expires_at: trx.fn.now() });
+    const token = randomBytes(32).toString('base64url');
+    await trx('invitations').insert({ user_id: userId, token_hash: sha256(token), expires_at: new Date(Date.now() + INVITE_HOURS * 3600_000), created_by: by });
+    return { email: user.email as string, name: user.name as string, token };
+  });
+}
+
 export async function updateUser(db: Knex, id: string, input: UserUpdate, by: string): Promise<void> {
   if (id === by && (input.active === false || (input.role && input.role !== 'admin'))) throw badRequest('You cannot deactivate yourself or remove your own admin role; ask another administrator.');
   await db.transaction(async (trx) => {

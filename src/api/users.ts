@@ -18,6 +18,8 @@ const One = z.object({ user: AdminUser });
 export const listUsers = async () => (await request('GET', '/api/users', { schema: z.object({ users: z.array(AdminUser) }) })).users;
 export const inviteUser = async (input: InviteRequest) => (await request('POST', '/api/users', { body: input, schema: One })).user;
 export const updateUser = async (id: string, patch: UserUpdate) => (await request('PATCH', `/api/users/${id}`, { body: patch, schema: One })).user;
+/** A new single-use link by e-mail; the earlier links stop working. */
+export const resendInvitation = async (id: string) => (await request('POST', `/api/users/${id}/invitation`, { body: {}, schema: One })).user;
 export const setPassword = (input: SetPasswordRequest) => request('POST', '/api/auth/set-password', { body: input, schema: z.object({ email: z.string() }), auth: false });
 
 /** The development mailbox (absent in production): the local demo's invitations. */
