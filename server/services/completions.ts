@@ -40,6 +40,8 @@ function filtered(db: Knex, q: Knex.QueryBuilder, f: Filter) {
   if (f.doorId) q.where('cp.door_id', f.doorId);
   if (f.coreId) q.where('cp.core_id', f.coreId);
   if (f.result) q.where('cp.result', f.result);
+  // A core that failed a key check in any completion, even one it passed later after a rebuild.
+  if (f.hadFailedCheck === '1') q.whereExists((x) => x.select(db.raw('1')).from('completions as f').whereRaw('f.core_id = cp.core_id').where((w) => w.where('f.result', 'failed').orWhere('f.failed_checks', '>', 0)));
   whereDays(db, q, 'cp.finished_at', f);
   return q;
 }

@@ -36,6 +36,9 @@ export function createMailer(config: Config, log: (msg: string) => void = consol
   };
 }
 
+/** What became of a core after a failed key check, as the tablet knew it when it synced. */
+export type KeyCheckOutcome = { kind: 'waits' } | { kind: 'passed'; at: string; attempt: number | null };
+
 export const mails = {
   invitation(name: string, link: string, inviter: string): Omit<Mail, 'to'> {
     return {
@@ -55,10 +58,14 @@ export const mails = {
       text: `Every core of work order #${o.number}, "${o.title}" (${o.cores}), has passed its key check.\n\nThe completion log has the details:\n${o.link}\n`,
     };
   },
-  keyCheckFailed(o: { number: number | null; title: string | null; tag: string; door: string | null; technician: string; notes: string[]; link: string }): Omit<Mail, 'to'> {
+  keyCheckFailed(o: { number: number | null; title: string | null; tag: string; door: string | null; technician: string; notes: string[]; outcome: KeyCheckOutcome; link: string }): Omit<Mail, 'to'> {
+    const passed = o.outcome.kind === 'passed';
+    const after = o.outcome.kind === 'passed'
+      ? `The core was rebuilt and passed its key check${o.outcome.attempt ? ` on attempt ${o.outcome.attempt}` : ''} at ${o.outcome.at.replace('T', ' ').slice(0, 16)} UTC, before the tablet synced; no rebuild is waiting.`
+      : 'The core waits for a rebuild.';
     return {
-      subject: `Failed key check: core ${o.tag}${o.door ? ` for ${o.door}` : ''}`,
-      text: `${o.technician} recorded a failed key check on core ${o.tag}${o.door ? ` (door ${o.door})` : ''}${o.number ? `, work order #${o.number} "${o.title}"` : ''}.\n${o.notes.length ? `\nWhat happened:\n${o.notes.map((n) => `- ${n}`).join('\n')}\n` : ''}\nThe core waits for a rebuild. Completion log:\n${o.link}\n`,
+      subject: `${passed ? 'Key check failed, then passed' : 'Failed key check'}: core ${o.tag}${o.door ? ` for ${o.door}` : ''}`,
+      text: `${o.technician} recorded a failed key check on core ${o.tag}${o.door ? ` (door ${o.door})` : ''}${o.number ? `, work order #${o.number} "${o.title}"` : ''}.\n${o.notes.length ? `\nWhat happened:\n${o.notes.map((n) => `- ${n}`).join('\n')}\n` : ''}\n${after} Completion log:\n${o.link}\n`,
     };
   },
 };

@@ -5,7 +5,7 @@
  */
 import type { Knex } from 'knex';
 import type { Config } from '../config';
-import { mails, type Mailer } from './mail';
+import { mails, type KeyCheckOutcome, type Mailer } from './mail';
 import { getWorkOrder } from './workOrders';
 
 export type NotificationKind = 'key-check-failed' | 'work-order-done';
@@ -33,12 +33,32 @@ async function deliver({ db, mailer, config }: Deps, kind: NotificationKind, ref
   const c = await db('completions as cp')
     .leftJoin('work_orders as w', 'w.id', 'cp.work_order_id')
     .where('cp.id', refId)
-    .first('cp.core_tag', 'cp.door_label', 'cp.technician_name', 'w.id as woId', 'w.number', 'w.title', 'cp.attempts');
+    .first('cp.core_id', 'cp.core_tag', 'cp.door_label', 'cp.technician_name', 'cp.result', 'cp.attempt_count', 'cp.finished_at', 'cp.received_at', 'w.id as woId', 'w.number', 'w.title', 'cp.attempts');
   if (!c) return;
   const notes = (c.attempts as { keyChecks: { result: string; symbol: string; note?: string }[] }[]).flatMap((a) => a.keyChecks.filter((k) => k.result === 'failed').map((k) => `${k.symbol}: ${k.note ?? 'failed'}`));
+  const outcome = await outcomeOffline(db, c);
   for (const to of await supervisorsFor(db, c.woId)) {
-    await mailer.send({ to, ...mails.keyCheckFailed({ number: c.number, title: c.title, tag: c.core_tag, door: c.door_label, technician: c.technician_name, notes, link: `${config.publicUrl}/completions?result=failed` }) });
+    await mailer.send({
+      to,
+      ...mails.keyCheckFailed({ number: c.number, title: c.title, tag: c.core_tag, door: c.door_label, technician: c.technician_name, notes, outcome, link: `${config.publicUrl}/completions?hadFailedCheck=1&coreId=${c.core_id}` }),
+    });
   }
+}
+
+/**
+ * What was true on the tablet when it synced, not when the mail goes out: a core that failed,
+ * was rebuilt and passed before the sync (in the same completion, or a later one finished
+ * before this one reached the server) is reported as passed, not as waiting for a rebuild.
+ */
+export async function outcomeOffline(db: Knex, c: { core_id: string; result: string; attempt_count: number; finished_at: Date; received_at: Date }): Promise<KeyCheckOutcome> {
+  if (c.result === 'passed') return { kind: 'passed', at: new Date(c.finished_at).toISOString(), attempt: c.attempt_count };
+  const later = await db('completions')
+    .where({ core_id: c.core_id, result: 'passed' })
+    .where('finished_at', '>', c.finished_at)
+    .where('finished_at', '<=', c.received_at)
+    .orderBy('finished_at')
+    .first('finished_at');
+  return later ? { kind: 'passed', at: new Date(later.finished_at).toISOString(), attempt: null } : { kind: 'waits' };
 }
 
 /** Sends what is owed, one row at a time; returns how many were sent. */

@@ -9,6 +9,8 @@ export const CompletionQuery = z.strictObject({
   doorId: Id.optional(),
   coreId: Id.optional(),
   result: z.enum(['passed', 'failed']).optional(),
+  /** 1: only cores that had a failed key check at some point, whatever their final result. */
+  hadFailedCheck: z.enum(['1'], { error: 'hadFailedCheck is 1 or left out' }).optional(),
   from: IsoDate.optional(),
   to: IsoDate.optional(),
   tz: TzOffset,
