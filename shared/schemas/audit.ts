@@ -22,8 +22,7 @@ export type AuditPage = z.infer<typeof AuditPage>;
 const Prefixes = z
   .string()
   .trim()
-  .max(200, { error: 'action is at most 200 characters' })
-  .regex(/^[a-z.,-]*$/, { error: 'action is one or more action prefixes like door. or bittings., separated by commas' });
+  .max(200, { error: 'action is one or more action prefixes like door. or bittings., separated by commas, at most 200 characters' });
 export const AuditQuery = z.strictObject({
   action: Prefixes.optional(),
   actorId: Id.optional(),

@@ -55,7 +55,7 @@ describe('GET /api/audit-events reads as words', () => {
   });
 
   test.each([
-    ['action=%25', 'action'],
+    [`action=${'a'.repeat(201)}`, 'action'],
     ['actorId=lead', 'actorId'],
     ['from=yesterday', 'from'],
     ['pageSize=500', 'pageSize'],
