@@ -3,7 +3,7 @@ import multer from 'multer';
 import { z } from 'zod';
 import { auditSystem, progressKeys, KeyingError, type AuditFinding } from '../../shared/keying';
 import { Id, Notes } from '../../shared/schemas/common';
-import { KeyInput, KeySystemCreate, KeySystemUpdate, KeyUpdate, ProfileId, ProfileInput, ProgressionInput, type HeldKey } from '../../shared/schemas/records';
+import { KeyInput, KeyReplace, KeySystemCreate, KeySystemUpdate, KeyUpdate, ProfileId, ProfileInput, ProgressionInput, type HeldKey } from '../../shared/schemas/records';
 import type { Ctx } from '../context';
 import { badRequest } from '../errors';
 import { actorOf, allow } from '../middleware/auth';
@@ -11,7 +11,8 @@ import { parse } from '../middleware/validate';
 import { audit } from '../services/audit';
 import { acknowledge, withAcknowledgements } from '../services/auditAcknowledgements';
 import { importKeys } from '../services/csvImport';
-import { addKeys, createSystem, getSystem, listKeys, listSystems, loadSystem, placementSystemOf, updateKey, updateSystem } from '../services/keySystems';
+import { coresOperatedBy } from '../services/keyDoors';
+import { addKeys, replaceKey, createSystem, getSystem, listKeys, listSystems, loadSystem, placementSystemOf, updateKey, updateSystem } from '../services/keySystems';
 import { createProfile, listProfiles, updateProfile } from '../services/profiles';
 import { auditInputFor } from '../services/systemAudit';
 
@@ -108,7 +109,8 @@ export function keySystemsRouter({ db, sealer, config }: Ctx): Router {
     const input = parse(KeyUpdate, req.body, 'The key');
     await db.transaction(async (trx) => {
       await updateKey(trx, sealer, id, keyId, input);
-      await audit(trx, actorOf(req), input.bitting ? 'key.bitting-changed' : 'key.updated', { type: 'key', id: keyId }, { status: input.status });
+      const action = input.bitting ? 'key.bitting-changed' : input.status === 'retired' ? 'key.retired' : 'key.updated';
+      await audit(trx, actorOf(req), action, { type: 'key', id: keyId }, { fields: Object.keys(input).filter((k) => k !== 'bitting'), status: input.status });
     });
     res.json({ ok: true });
   });
@@ -119,6 +121,21 @@ export function keySystemsRouter({ db, sealer, config }: Ctx): Router {
    * system audit runs on the keys proposed: one that would raise an audit error (for
    * example, it would turn cores it is not meant to) is held back and listed with why.
    */
+  /** The cores and doors a key turns (engine keyOperates), each intended or incidental; no bitting in the answer. */
+  r.get('/key-systems/:id/keys/:keyId/operates', allow('supervisor', 'admin'), async (req, res) => {
+    const { id } = parse(IdParam, req.params);
+    const keyId = parse(Id, req.params.keyId, 'The key id');
+    res.json({ cores: await coresOperatedBy(db, sealer, id, keyId) });
+  });
+  r.post('/key-systems/:id/keys/:keyId/replace', allow('admin'), async (req, res) => {
+    const { id } = parse(IdParam, req.params);
+    const keyId = parse(Id, req.params.keyId, 'The key id');
+    const input = parse(KeyReplace, req.body, 'The replacement');
+    const out = await replaceKey(db, sealer, id, keyId, input);
+    await audit(db, actorOf(req), 'key.replaced', { type: 'key', id: keyId }, { by: out.symbol, old: input.oldStatus, doors: out.doors.length, coresToRekey: out.coresToRekey.length });
+    res.status(201).json(out);
+  });
+
   r.post('/key-systems/:id/progression', allow('admin'), async (req, res) => {
     const { id } = parse(IdParam, req.params);
     const input = parse(ProgressionInput, req.body, 'The progression');

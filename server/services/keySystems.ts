@@ -5,7 +5,8 @@
 import { randomUUID } from 'node:crypto';
 import type { Knex } from 'knex';
 import { placementChecker, readBitting, type PlacementProblem, type PlacementSystem, type Profile } from '../../shared/keying';
-import type { KeyInput, KeyLevel, KeySystemCreate, KeySystemUpdate, KeyStatus, KeyUpdate } from '../../shared/schemas/records';
+import type { KeyInput, KeyLevel, KeyReplace, KeySystemCreate, KeySystemUpdate, KeyStatus, KeyUpdate } from '../../shared/schemas/records';
+import { naturalCompare } from '../../shared/words';
 import { badRequest, conflict, notFound } from '../errors';
 import type { Sealer } from './secrets';
 import { getProfile } from './profiles';
@@ -193,6 +194,28 @@ export async function addKeys(db: Knex, sealer: Sealer, systemId: string, inputs
     }
     await trx('key_systems').where({ id: systemId }).update({ updated_at: trx.fn.now() });
     return ids;
+  });
+}
+
+/**
+ * A new key in the place of a lost or worn-out one: same level and master, through addKeys (the
+ * hand-entry path and its hierarchy rules). The old key is marked lost or retired and the doors
+ * that took it take the new one; their cores still open to the old key until they are rekeyed.
+ */
+export async function replaceKey(db: Knex, sealer: Sealer, systemId: string, keyId: string, input: KeyReplace): Promise<{ id: string; symbol: string; doors: string[]; coresToRekey: string[] }> {
+  const system = await loadSystem(db, sealer, systemId);
+  const old = system.keys.find((k) => k.id === keyId);
+  if (!old) throw notFound('That key');
+  if (old.status !== 'active') throw conflict(`Key ${old.symbol} is ${old.status} already; replace an active key.`, [{ field: 'keyId', message: old.status }]);
+  if (system.keys.some((k) => k.parentId === keyId && k.status === 'active')) {
+    throw conflict(`Keys hang under ${old.symbol}: their bittings come from it. Replace or move them first.`, [{ field: 'keyId', message: 'has keys under it' }]);
+  }
+  return db.transaction(async (trx) => {
+    const [id] = await addKeys(trx, sealer, systemId, [{ symbol: input.symbol, level: old.level, parentId: old.parentId, bitting: input.bitting, status: 'active', crossKeyed: false, notes: `Replaces ${old.symbol}` }]);
+    await trx('keys').where({ id: keyId }).update({ status: input.oldStatus, updated_at: trx.fn.now() });
+    const doors = (await trx('doors').where({ key_id: keyId }).update({ key_id: id, updated_at: trx.fn.now() }).returning('label')) as { label: string }[];
+    const cores = (await trx('core_keys as ck').join('cores as c', 'c.id', 'ck.core_id').where('ck.key_id', keyId).whereNot('c.state', 'retired').pluck('c.tag')) as string[];
+    return { id: id!, symbol: input.symbol.toUpperCase(), doors: doors.map((d) => d.label).sort(naturalCompare), coresToRekey: cores.sort(naturalCompare) };
   });
 }
 

@@ -140,6 +140,26 @@ export const Key = z.object({
 });
 export type Key = z.infer<typeof Key>;
 
+/** A core a key turns: `intended` when the core is pinned for the key, otherwise incidental. */
+export const KeyOperatesRow = z.object({
+  coreId: Id,
+  tag: z.string(),
+  state: z.enum(['planned', 'loaded', 'checked', 'capped', 'installed', 'retired']),
+  doorId: Id.nullable(),
+  doorLabel: z.string().nullable(),
+  intended: z.boolean(),
+});
+export type KeyOperatesRow = z.infer<typeof KeyOperatesRow>;
+
+/** A new key in the place of one lost or worn out: same level and master, a new symbol and bitting. */
+export const KeyReplace = z.strictObject({
+  symbol: KeySymbol,
+  bitting: BittingText,
+  /** What became of the old key: lost (a security matter) or retired. */
+  oldStatus: z.enum(['lost', 'retired'], { error: 'oldStatus is lost or retired' }).default('retired'),
+});
+export type KeyReplace = z.infer<typeof KeyReplace>;
+
 // ---- doors -----------------------------------------------------------------------------
 const doorFields = {
   site: Name(80, 'the site'),

@@ -1,6 +1,6 @@
 /** Key systems and keys. Bittings come only with reveal=1, which the server audits. */
 import { z } from 'zod';
-import { Key, KeySystem, ProgressionPreview, type KeyInput, type KeySystemCreate, type KeyUpdate, type ProgressionInput } from '@shared/schemas/records';
+import { Key, KeyOperatesRow, KeySystem, ProgressionPreview, type KeyInput, type KeyReplace, type KeySystemCreate, type KeyUpdate, type ProgressionInput } from '@shared/schemas/records';
 import { auditFindingCodes } from '@shared/keying';
 import { request } from './http';
 import { uploadCsv } from './doors';
@@ -43,3 +43,9 @@ export const auditKeySystem = (id: string) => request('GET', `/api/key-systems/$
 /** Administrators only; the server audits it. */
 export const acknowledgeFinding = (id: string, fingerprint: string, note: string) =>
   request('POST', `/api/key-systems/${id}/audit/acknowledgements`, { body: { fingerprint, note }, schema: z.object({ fingerprint: z.string() }) });
+
+export const ReplaceResult = z.object({ id: z.uuid(), symbol: z.string(), doors: z.array(z.string()), coresToRekey: z.array(z.string()) });
+export type ReplaceResult = z.infer<typeof ReplaceResult>;
+/** The cores a key turns, intended or incidental (the engine's keyOperates); no bitting in the answer. */
+export const keyOperates = async (id: string, keyId: string) => (await request('GET', `/api/key-systems/${id}/keys/${keyId}/operates`, { schema: z.object({ cores: z.array(KeyOperatesRow) }) })).cores;
+export const replaceKey = (id: string, keyId: string, input: Partial<KeyReplace> & Pick<KeyReplace, 'symbol' | 'bitting'>) => request('POST', `/api/key-systems/${id}/keys/${keyId}/replace`, { body: input, schema: ReplaceResult });

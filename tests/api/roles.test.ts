@@ -57,6 +57,8 @@ const matrix: Entry[] = [
   { method: 'GET', route: '/api/key-systems/:id/keys', path: '/api/key-systems/{ks}/keys', allow: SUP, ok: 200 },
   { method: 'POST', route: '/api/key-systems/:id/keys', path: '/api/key-systems/{ks}/keys', allow: ADM, ok: 400, body: {} },
   { method: 'PATCH', route: '/api/key-systems/:id/keys/:keyId', path: '/api/key-systems/{ks}/keys/{key}', allow: ADM, ok: 200, body: {} },
+  { method: 'GET', route: '/api/key-systems/:id/keys/:keyId/operates', path: '/api/key-systems/{ks}/keys/{key}/operates', allow: SUP, ok: 200 },
+  { method: 'POST', route: '/api/key-systems/:id/keys/:keyId/replace', path: '/api/key-systems/{ks}/keys/{key}/replace', allow: ADM, ok: 400, body: {} },
   { method: 'POST', route: '/api/key-systems/:id/progression', path: '/api/key-systems/{ks}/progression', allow: ADM, ok: 400, body: {} },
   { method: 'POST', route: '/api/key-systems/:id/import', path: '/api/key-systems/{ks}/import', allow: ADM, ok: 400, body: {} },
   { method: 'GET', route: '/api/key-systems/:id/audit', path: '/api/key-systems/{ks}/audit', allow: SUP, ok: 200 },
