@@ -71,7 +71,7 @@ export const actionGroups = [
 ] as const;
 
 const whatWords: Record<string, string> = { control: 'the control key', keys: 'the key bittings', charts: 'the pinning charts', 'progression-preview': 'a progression preview' };
-const fieldWords: Record<string, string> = { dueDate: 'due date', assigneeId: 'assignee', fireRated: 'fire rating', keySystemId: 'key system', keyId: 'key', parentId: 'master', crossKeyId: 'cross-keyed key' };
+const fieldWords: Record<string, string> = { deviceId: 'tablet', dueDate: 'due date', assigneeId: 'assignee', fireRated: 'fire rating', keySystemId: 'key system', keyId: 'key', parentId: 'master', crossKeyId: 'cross-keyed key' };
 
 type Value = unknown;
 /** Names for ids found in details (users, mostly), filled in by the server. */
@@ -88,6 +88,8 @@ function words(key: string, v: Value, nameOf: NameOf): string | null {
   }
   if (typeof v === 'boolean') return `${key}: ${v ? 'yes' : 'no'}`;
   const s = String(v);
+  // A record's id is never shown bare: its name, or that it is gone.
+  if (/^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i.test(s)) return `${key}: ${nameOf(s) ?? '(no longer on record)'}`;
   return `${key}: ${nameOf(s) ?? s}`;
 }
 

@@ -52,12 +52,13 @@ async function namesFor(db: Knex, rows: Row[]): Promise<Map<string, string>> {
   const put = (list: { id: string; name: string }[]) => list.forEach((x) => names.set(x.id, x.name));
   const userIds = [...new Set([...ids(['user']), ...detailIds])];
   if (userIds.length) put(await db('users').whereIn('id', userIds).select('id', db.raw(`name || ' (' || email || ')' as name`)));
+  const deviceIds = [...new Set([...ids(['device']), ...detailIds])];
   if (ids(['key-system']).length) put(await db('key_systems').whereIn('id', ids(['key-system'])).select('id', 'name'));
   if (ids(['key']).length) put(await db('keys as k').join('key_systems as s', 's.id', 'k.key_system_id').whereIn('k.id', ids(['key'])).select('k.id', db.raw(`k.symbol || ' in ' || s.name as name`)));
   if (ids(['door']).length) put(await db('doors').whereIn('id', ids(['door'])).select('id', 'label as name'));
   if (ids(['core']).length) put(await db('cores').whereIn('id', ids(['core'])).select('id', 'tag as name'));
   if (ids(['work-order', 'work-order-packet']).length) put(await db('work_orders').whereIn('id', ids(['work-order', 'work-order-packet'])).select('id', db.raw(`'#' || number || ' ' || title as name`)));
-  if (ids(['device']).length) put(await db('devices as d').join('users as u', 'u.id', 'd.user_id').whereIn('d.id', ids(['device'])).select('d.id', db.raw(`coalesce(d.label, 'tablet') || ' of ' || u.name as name`)));
+  if (deviceIds.length) put(await db('devices as d').join('users as u', 'u.id', 'd.user_id').whereIn('d.id', deviceIds).select('d.id', db.raw(`coalesce(d.label, 'tablet') || ' of ' || u.name as name`)));
   if (ids(['completion']).length) put(await db('completions as c').join('cores as k', 'k.id', 'c.core_id').whereIn('c.id', ids(['completion'])).select('c.id', db.raw(`'of core ' || k.tag as name`)));
   return names;
 }
