@@ -1,5 +1,6 @@
 import type { AuditContext } from './context';
-import { coreIds, coreName, finding, keyRefs, nameList, plural, type Ranked } from './format';
+import { auditFindingCodes, type AuditFindingCode } from '../codes';
+import { coreName, nameList, plural, type Ranked } from './format';
 
 /**
  * Compares who turns each core with who is meant to. A key is meant to operate a core
@@ -9,70 +10,115 @@ import { coreIds, coreName, finding, keyRefs, nameList, plural, type Ranked } fr
  */
 export function accessFindings(ctx: AuditContext, turning: number[][]): Ranked[] {
   const keyCount = ctx.system.keys.length;
-  // Per key (system order): the cores of each kind, filled in core order.
-  const unintended: (number[] | undefined)[] = new Array(keyCount);
-  const fails: (number[] | undefined)[] = new Array(keyCount);
-  const disagree: (number[] | undefined)[] = new Array(keyCount);
+  // (key, core) pairs of each kind, appended in core order; grouped by key below.
+  const unintended = new Pairs();
+  const fails = new Pairs();
+  const disagree = new Pairs();
   const turnsMark = new Int32Array(keyCount);
   const pinnedMark = new Int32Array(keyCount);
   const openerMark = new Int32Array(keyCount);
 
-  ctx.system.cores.forEach((_, c) => {
+  const coreCount = ctx.system.cores.length;
+  for (let c = 0; c < coreCount; c++) {
     const stamp = c + 1;
-    for (const k of turning[c] as number[]) turnsMark[k] = stamp;
-    for (const k of ctx.coreKeys[c] as number[]) pinnedMark[k] = stamp;
-    for (const k of ctx.openers[c] as number[]) openerMark[k] = stamp;
+    const turns = turning[c] as number[];
+    const pinned = ctx.coreKeys[c] as number[];
+    const openers = ctx.openers[c] as number[];
+    for (const k of turns) turnsMark[k] = stamp;
+    for (const k of pinned) pinnedMark[k] = stamp;
+    for (const k of openers) openerMark[k] = stamp;
 
-    for (const k of ctx.openers[c] as number[]) {
-      if (turnsMark[k] !== stamp) add(fails, k, c);
-      else if (pinnedMark[k] !== stamp) add(disagree, k, c);
+    for (const k of openers) {
+      if (turnsMark[k] !== stamp) fails.add(k, c);
+      else if (pinnedMark[k] !== stamp) disagree.add(k, c);
     }
-    for (const k of ctx.coreKeys[c] as number[]) if (openerMark[k] !== stamp) add(disagree, k, c);
-    for (const k of turning[c] as number[]) {
-      if (pinnedMark[k] !== stamp && openerMark[k] !== stamp) add(unintended, k, c);
+    for (const k of pinned) if (openerMark[k] !== stamp) disagree.add(k, c);
+    for (const k of turns) {
+      if (pinnedMark[k] !== stamp && openerMark[k] !== stamp) unintended.add(k, c);
     }
-  });
+  }
 
   const out: Ranked[] = [];
-  for (const [k, cores] of sorted(unintended)) {
-    const symbol = ctx.system.keys[k]?.symbol ?? '';
-    out.push(finding('unintended-access', k, {
-      message: `Key ${symbol} turns ${plural(cores.length, 'core')} it is not meant to operate: ${nameList(cores.slice(0, 6).map((c) => coreName(ctx, c)), 5, cores.length)}.`,
-      advice: 'Recut or retire the key, or re-pin those cores with other master depths so the key’s cuts are not all among their operating depths; if the access is wanted, add the cores to the key’s record.',
-      ...keyRefs(ctx, [k]), cores: coreIds(ctx, cores), data: { cores: cores.length },
-    }));
-  }
-  for (const [k, cores] of sorted(fails)) {
-    const symbol = ctx.system.keys[k]?.symbol ?? '';
-    out.push(finding('intended-key-fails', k, {
-      message: `Key ${symbol} is meant to operate ${nameList(cores.slice(0, 6).map((c) => coreName(ctx, c)), 5, cores.length)} but does not turn ${cores.length === 1 ? 'it' : 'them'}: the core is not pinned for this key.`,
-      advice: 'Add the key to the core’s operating keys and re-pin it, or take the core off the key’s record.',
-      ...keyRefs(ctx, [k]), cores: coreIds(ctx, cores), data: { cores: cores.length },
-    }));
-  }
-  for (const [k, cores] of sorted(disagree)) {
-    const symbol = ctx.system.keys[k]?.symbol ?? '';
-    out.push(finding('records-disagree', k, {
-      message: `Key ${symbol} and ${nameList(cores.slice(0, 6).map((c) => coreName(ctx, c)), 5, cores.length)} disagree: only one of the two records says the key operates the core.`,
-      advice: 'Correct the key’s list of cores or the core’s list of keys so both say the same.',
-      ...keyRefs(ctx, [k]), cores: coreIds(ctx, cores), data: { cores: cores.length },
-    }));
-  }
+  unintended.eachKey(keyCount, (k, cores, from, to) => {
+    const n = to - from;
+    out.push(keyFinding(ctx, 'unintended-access', k, cores, from, to,
+      `Key ${symbolOf(ctx, k)} turns ${plural(n, 'core')} it is not meant to operate: ${coreNameList(ctx, cores, from, to)}.`,
+      'Recut or retire the key, or re-pin those cores with other master depths so the key’s cuts are not all among their operating depths; if the access is wanted, add the cores to the key’s record.'));
+  });
+  fails.eachKey(keyCount, (k, cores, from, to) => {
+    out.push(keyFinding(ctx, 'intended-key-fails', k, cores, from, to,
+      `Key ${symbolOf(ctx, k)} is meant to operate ${coreNameList(ctx, cores, from, to)} but does not turn ${to - from === 1 ? 'it' : 'them'}: the core is not pinned for this key.`,
+      'Add the key to the core’s operating keys and re-pin it, or take the core off the key’s record.'));
+  });
+  disagree.eachKey(keyCount, (k, cores, from, to) => {
+    out.push(keyFinding(ctx, 'records-disagree', k, cores, from, to,
+      `Key ${symbolOf(ctx, k)} and ${coreNameList(ctx, cores, from, to)} disagree: only one of the two records says the key operates the core.`,
+      'Correct the key’s list of cores or the core’s list of keys so both say the same.'));
+  });
   return out;
 }
 
-function add(byKey: (number[] | undefined)[], k: number, c: number): void {
-  const list = byKey[k];
-  if (list) list.push(c);
-  else byKey[k] = [c];
+const symbolOf = (ctx: AuditContext, k: number): string => ctx.system.keys[k]?.symbol ?? '';
+
+/** nameList over cores[from..to): the first names and how many more. */
+function coreNameList(ctx: AuditContext, cores: Int32Array, from: number, to: number): string {
+  const names: string[] = [];
+  for (let i = from; i < to && i < from + 6; i++) names.push(coreName(ctx, cores[i] as number));
+  return nameList(names, 5, to - from);
 }
 
-/** [key, cores] for every key with cores, ascending by key. */
-function sorted(byKey: (number[] | undefined)[]): [number, number[]][] {
-  const out: [number, number[]][] = [];
-  for (let k = 0; k < byKey.length; k++) {
-    const cores = byKey[k];
-    if (cores) out.push([k, cores]);
+/** One finding about key k and cores[from..to), built in one object (no spread copies). */
+function keyFinding(
+  ctx: AuditContext, code: AuditFindingCode, k: number, cores: Int32Array, from: number, to: number,
+  message: string, advice: string,
+): Ranked {
+  const key = ctx.system.keys[k];
+  const ids: string[] = new Array(to - from);
+  for (let i = from; i < to; i++) ids[i - from] = ctx.system.cores[cores[i] as number]?.id ?? '';
+  return {
+    finding: {
+      code, severity: auditFindingCodes[code].severity, message, advice,
+      keys: [key?.symbol ?? ''], keyIds: [key?.id ?? ''], cores: ids, data: { cores: to - from },
+    },
+    order: k,
+  };
+}
+
+/** A growing list of (key, core) pairs in typed arrays: no array per key while collecting. */
+class Pairs {
+  keys = new Int32Array(1024);
+  cores = new Int32Array(1024);
+  length = 0;
+
+  add(k: number, c: number): void {
+    if (this.length === this.keys.length) {
+      const keys = new Int32Array(this.length * 2);
+      keys.set(this.keys);
+      this.keys = keys;
+      const cores = new Int32Array(this.length * 2);
+      cores.set(this.cores);
+      this.cores = cores;
+    }
+    this.keys[this.length] = k;
+    this.cores[this.length++] = c;
   }
-  return out;
+
+  /**
+   * Calls back once per key with pairs, ascending by key, with that key's cores as
+   * cores[from..to) in the order they were added (a stable counting sort by key).
+   */
+  eachKey(keyCount: number, visit: (k: number, cores: Int32Array, from: number, to: number) => void): void {
+    if (this.length === 0) return;
+    const start = new Int32Array(keyCount + 1);
+    for (let i = 0; i < this.length; i++) start[(this.keys[i] as number) + 1]++;
+    for (let k = 0; k < keyCount; k++) start[k + 1] += start[k] as number;
+    const fill = start.slice(0, keyCount);
+    const cores = new Int32Array(this.length);
+    for (let i = 0; i < this.length; i++) cores[fill[this.keys[i] as number]++] = this.cores[i] as number;
+    for (let k = 0; k < keyCount; k++) {
+      const from = start[k] as number;
+      const to = start[k + 1] as number;
+      if (to > from) visit(k, cores, from, to);
+    }
+  }
 }

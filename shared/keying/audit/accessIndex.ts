@@ -14,15 +14,17 @@ export function keysTurningIndexed(ctx: AuditContext): number[][] {
   const { profile, pinnings } = ctx;
   const chambers = profile.chambers;
   const masks = new Int32Array(chambers);
+  const scratch: number[] = [];
   return pinnings.map((pinning) => {
-    const out: number[] = [];
-    if (pinning.chambers.length !== chambers) return out;
+    if (pinning.chambers.length !== chambers) return [];
     for (let i = 0; i < chambers; i++) {
       let mask = 0;
       for (const d of (pinning.chambers[i] as { depths: number[] }).depths) mask |= 1 << d;
       masks[i] = mask;
     }
-    keysMatching(ctx, masks, pinning.openingsCount, out);
-    return ascending(out);
+    // Collected in one reused list, sorted there and copied once at its final size.
+    scratch.length = 0;
+    keysMatching(ctx, masks, pinning.openingsCount, scratch);
+    return ascending(scratch).slice();
   });
 }

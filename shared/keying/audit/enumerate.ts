@@ -37,9 +37,26 @@ function walk(masks: Int32Array, i: number, code: number, table: BittingTable, o
   }
 }
 
-/** The list sorted ascending: numbers sort fastest as a typed array, without a comparator. */
+/**
+ * The list sorted ascending, in place: short lists by insertion (no comparator calls),
+ * long ones through a typed array (numbers sort fastest there) copied back.
+ */
 export function ascending(list: number[]): number[] {
-  if (list.length < 2) return list;
-  if (list.length < 12) return list.sort((a, b) => a - b);
-  return Array.from(Int32Array.from(list).sort());
+  const n = list.length;
+  if (n < 2) return list;
+  if (n <= 32) {
+    for (let i = 1; i < n; i++) {
+      const v = list[i] as number;
+      let j = i - 1;
+      while (j >= 0 && (list[j] as number) > v) {
+        list[j + 1] = list[j] as number;
+        j--;
+      }
+      list[j + 1] = v;
+    }
+    return list;
+  }
+  const sorted = Int32Array.from(list).sort();
+  for (let i = 0; i < n; i++) list[i] = sorted[i] as number;
+  return list;
 }

@@ -14,11 +14,13 @@ import { ascending, keysMatching } from './enumerate';
 export function keysReleasingIndexed(ctx: AuditContext): number[][] {
   const { profile, pinnings } = ctx;
   const masks = new Int32Array(profile.chambers);
+  const scratch: number[] = [];
   return pinnings.map((pinning) => {
-    const out: number[] = [];
-    if (pinning.chambers.length !== profile.chambers || pinning.controlOpeningsCount === 0) return out;
+    if (pinning.chambers.length !== profile.chambers || pinning.controlOpeningsCount === 0) return [];
     for (let i = 0; i < profile.chambers; i++) masks[i] = controlDepthMask(pinning.chambers[i]!, profile);
-    keysMatching(ctx, masks, pinning.controlOpeningsCount, out);
-    return ascending(out);
+    // Collected in one reused list, sorted there and copied once at its final size.
+    scratch.length = 0;
+    keysMatching(ctx, masks, pinning.controlOpeningsCount, scratch);
+    return ascending(scratch).slice();
   });
 }
