@@ -191,21 +191,23 @@ function checkKeys(
   for (let index = 0; index < count; index++) {
     if (firstSameRow(rows, n, index) < index) continue; // duplicates are harmless; report once
     const at = index * n;
-    const label = labelOf(index);
+    // The label is written only for an issue: most keys have none.
     if (sameRow(rows, n, at, controlRow)) {
       issues.push({
         code: 'control-equals-operating', severity: 'error', key: index,
-        message: `${label} is the control key — it would release the core from its housing; take it off the operating list or choose another control key.`,
+        message: `${labelOf(index)} is the control key — it would release the core from its housing; take it off the operating list or choose another control key.`,
       });
     } else if (releases(controlMasks, rows, n, at)) {
       issues.push({
         code: 'operating-releases-core', severity: 'error', key: index,
-        message: `${label} lines up the control shear line in every chamber (the seams of its two-wafer build-ups sit at its cuts), so it would release the core — stock each of those build-ups as one wafer, or choose a control key that, in at least one chamber where it differs from this key, is no deeper than that chamber’s deepest operating cut (one build-up wafer there leaves no seam).`,
+        message: `${labelOf(index)} lines up the control shear line in every chamber (the seams of its two-wafer build-ups sit at its cuts), so it would release the core — stock each of those build-ups as one wafer, or choose a control key that, in at least one chamber where it differs from this key, is no deeper than that chamber’s deepest operating cut (one build-up wafer there leaves no seam).`,
       });
     }
-    pushMacs(profile, rows, at, label, issues, index);
+    const macs = macsChamber(profile, rows, at);
+    if (macs >= 0) issues.push(macsIssue(profile, rows, at, macs, labelOf(index), index));
   }
-  pushMacs(profile, rows, controlRow, 'Control key', issues);
+  const macs = macsChamber(profile, rows, controlRow);
+  if (macs >= 0) issues.push(macsIssue(profile, rows, controlRow, macs, 'Control key'));
 }
 
 /**
@@ -240,17 +242,21 @@ function firstSameRow(rows: Int32Array, n: number, index: number): number {
   return index;
 }
 
-function pushMacs(profile: Profile, rows: Int32Array, at: number, label: string, issues: PinningIssue[], key?: number): void {
+/** The first chamber (0-based) whose cut and the next differ by more than the profile allows, or -1. */
+function macsChamber(profile: Profile, rows: Int32Array, at: number): number {
   for (let i = 0; i + 1 < profile.chambers; i++) {
-    const a = rows[at + i] as number;
-    const b = rows[at + i + 1] as number;
-    if (Math.abs(a - b) <= profile.maxAdjacentCut) continue;
-    issues.push({
-      code: 'macs-exceeded', severity: 'error', chamber: i + 1, ...(key === undefined ? {} : { key }),
-      message: `${label}: cuts ${a} and ${b} in chambers ${i + 1} and ${i + 2} differ by ${Math.abs(a - b)}, more than the ${profile.maxAdjacentCut} this profile allows — the key cannot be cut; change one of those cuts.`,
-    });
-    return;
+    if (Math.abs((rows[at + i] as number) - (rows[at + i + 1] as number)) > profile.maxAdjacentCut) return i;
   }
+  return -1;
+}
+
+function macsIssue(profile: Profile, rows: Int32Array, at: number, i: number, label: string, key?: number): PinningIssue {
+  const a = rows[at + i] as number;
+  const b = rows[at + i + 1] as number;
+  return {
+    code: 'macs-exceeded', severity: 'error', chamber: i + 1, ...(key === undefined ? {} : { key }),
+    message: `${label}: cuts ${a} and ${b} in chambers ${i + 1} and ${i + 2} differ by ${Math.abs(a - b)}, more than the ${profile.maxAdjacentCut} this profile allows — the key cannot be cut; change one of those cuts.`,
+  };
 }
 
 /** True when every chamber's control line meets a break at the key's depth there. */
