@@ -110,11 +110,19 @@ class Pairs {
   eachKey(keyCount: number, visit: (k: number, cores: Int32Array, from: number, to: number) => void): void {
     if (this.length === 0) return;
     const start = new Int32Array(keyCount + 1);
-    for (let i = 0; i < this.length; i++) start[(this.keys[i] as number) + 1]++;
-    for (let k = 0; k < keyCount; k++) start[k + 1] += start[k] as number;
+    for (let i = 0; i < this.length; i++) {
+      const at = (this.keys[i] as number) + 1;
+      start[at] = (start[at] as number) + 1;
+    }
+    for (let k = 0; k < keyCount; k++) start[k + 1] = (start[k + 1] as number) + (start[k] as number);
     const fill = start.slice(0, keyCount);
     const cores = new Int32Array(this.length);
-    for (let i = 0; i < this.length; i++) cores[fill[this.keys[i] as number]++] = this.cores[i] as number;
+    for (let i = 0; i < this.length; i++) {
+      const k = this.keys[i] as number;
+      const at = fill[k] as number;
+      fill[k] = at + 1;
+      cores[at] = this.cores[i] as number;
+    }
     for (let k = 0; k < keyCount; k++) {
       const from = start[k] as number;
       const to = start[k + 1] as number;
