@@ -19,8 +19,10 @@ export function installsRouter({ db }: Ctx): Router {
     if (!row) throw notFound('That install');
     if (!row.door_mismatch) throw badRequest('This install went into its planned door: there is nothing to review.');
     if (!row.reviewed_at) {
-      await db('installs').where({ id }).whereNull('reviewed_at').update({ reviewed_by: req.user!.id, reviewed_at: db.fn.now() });
-      await audit(db, actorOf(req), 'install.mismatch-reviewed', { type: 'install', id });
+      await db.transaction(async (trx) => {
+        await trx('installs').where({ id }).whereNull('reviewed_at').update({ reviewed_by: req.user!.id, reviewed_at: trx.fn.now() });
+        await audit(trx, actorOf(req), 'install.mismatch-reviewed', { type: 'install', id });
+      });
     }
     res.json({ review: await db('installs as i').leftJoin('users as u', 'u.id', 'i.reviewed_by').where('i.id', id).first('i.id', 'i.reviewed_at as reviewedAt', 'u.name as reviewedBy') });
   });

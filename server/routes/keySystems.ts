@@ -131,8 +131,11 @@ export function keySystemsRouter({ db, sealer, config }: Ctx): Router {
     const { id } = parse(IdParam, req.params);
     const keyId = parse(Id, req.params.keyId, 'The key id');
     const input = parse(KeyReplace, req.body, 'The replacement');
-    const out = await replaceKey(db, sealer, id, keyId, input);
-    await audit(db, actorOf(req), 'key.replaced', { type: 'key', id: keyId }, { by: out.symbol, old: input.oldStatus, doors: out.doors.length, coresToRekey: out.coresToRekey.length });
+    const out = await db.transaction(async (trx) => {
+      const replaced = await replaceKey(trx, sealer, id, keyId, input);
+      await audit(trx, actorOf(req), 'key.replaced', { type: 'key', id: keyId }, { by: replaced.symbol, old: input.oldStatus, doors: replaced.doors.length, coresToRekey: replaced.coresToRekey.length });
+      return replaced;
+    });
     res.status(201).json(out);
   });
 

@@ -3,7 +3,7 @@ import { SyncRequest } from '../../shared/schemas/sync';
 import type { Ctx } from '../context';
 import { actorOf, allow } from '../middleware/auth';
 import { parse } from '../middleware/validate';
-import { audit } from '../services/audit';
+import { audit, auditQuietly } from '../services/audit';
 import { touchDevice } from '../services/devices';
 import { landBatch } from '../services/sync';
 import { sendPending } from '../services/notifier';
@@ -29,12 +29,18 @@ export function syncRouter(ctx: Ctx): Router {
     const { response, events } = await landBatch(db, sealer, user, input.deviceId, input.records);
     // What is still on the tablet after this batch: its outbox count less what just landed.
     const left = input.outbox ? Math.max(0, input.outbox.waiting - response.accepted.length - response.duplicates.length) : response.rejected.length;
-    await db('devices').where({ id: input.deviceId }).update({ last_sync_at: db.fn.now(), last_sync_waiting: left });
+    // The records are committed by now: what follows must never turn that into a 500 (T10),
+    // and the tablet's replay would only get duplicates. Logged if it fails, never thrown.
+    try {
+      await db('devices').where({ id: input.deviceId }).update({ last_sync_at: db.fn.now(), last_sync_waiting: left });
+    } catch (err) {
+      console.error('[sync] could not record the device\'s last sync:', (err as Error).message);
+    }
     if (response.accepted.length || response.rejected.length) {
-      await audit(db, actorOf(req), 'sync.batch', { type: 'device', id: input.deviceId }, { accepted: response.accepted.length, duplicates: response.duplicates.length, rejected: response.rejected.length });
+      await auditQuietly(db, actorOf(req), 'sync.batch', { type: 'device', id: input.deviceId }, { accepted: response.accepted.length, duplicates: response.duplicates.length, rejected: response.rejected.length });
     }
     for (const rej of response.rejected.filter((x) => x.error.code === 'forbidden')) {
-      await audit(db, actorOf(req), 'access.denied', { type: 'sync-record', id: rej.clientId ?? String(rej.index) });
+      await auditQuietly(db, actorOf(req), 'access.denied', { type: 'sync-record', id: rej.clientId ?? String(rej.index) });
     }
     res.json(response);
     if (events.length) void sendPending(ctx).catch((err) => console.error('[sync] sending notifications failed', err));

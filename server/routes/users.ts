@@ -30,8 +30,11 @@ export function usersRouter({ db, mailer, config }: Ctx): Router {
   });
   r.post('/users/:id/invitation', allow('admin'), async (req, res) => {
     const id = parse(Id, req.params.id, 'The user id');
-    const { email, name, token } = await resendInvitation(db, id, req.user!.id);
-    await audit(db, actorOf(req), 'user.invitation-resent', { type: 'user', id });
+    const { email, name, token } = await db.transaction(async (trx) => {
+      const invitation = await resendInvitation(trx, id, req.user!.id);
+      await audit(trx, actorOf(req), 'user.invitation-resent', { type: 'user', id });
+      return invitation;
+    });
     await mailer.send({ to: email, ...mails.invitation(name, `${config.publicUrl}/set-password?token=${token}`, req.user!.name) });
     res.status(201).json({ user: (await listUsers(db, id))[0] });
   });

@@ -102,15 +102,21 @@ export function workOrdersRouter({ db, sealer, mailer, config }: Ctx): Router {
   r.post('/work-orders/:id/doors', allow('supervisor', 'admin'), async (req, res) => {
     const id = parse(Id, req.params.id, 'The work order id');
     const { doors } = parse(WorkOrderDoorsAdd, req.body, 'The doors');
-    const tags = await addDoors(db, sealer, id, doors);
-    await audit(db, actorOf(req), 'work-order.doors-added', { type: 'work-order', id }, { cores: tags });
+    // The audit row commits with the write, so a committed change never answers 500.
+    const tags = await db.transaction(async (trx) => {
+      const added = await addDoors(trx, sealer, id, doors);
+      await audit(trx, actorOf(req), 'work-order.doors-added', { type: 'work-order', id }, { cores: added });
+      return added;
+    });
     res.status(201).json({ workOrder: await getWorkOrder(db, id), tags });
   });
   r.delete('/work-orders/:id/cores/:coreId', allow('supervisor', 'admin'), async (req, res) => {
     const id = parse(Id, req.params.id, 'The work order id');
     const coreId = parse(Id, req.params.coreId, 'The core id');
-    const removed = await removeCore(db, id, coreId);
-    await audit(db, actorOf(req), 'work-order.door-removed', { type: 'work-order', id }, { core: removed.tag, door: removed.doorLabel });
+    await db.transaction(async (trx) => {
+      const removed = await removeCore(trx, id, coreId);
+      await audit(trx, actorOf(req), 'work-order.door-removed', { type: 'work-order', id }, { core: removed.tag, door: removed.doorLabel });
+    });
     res.json({ workOrder: await getWorkOrder(db, id) });
   });
 

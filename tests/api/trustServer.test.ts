@@ -2,6 +2,7 @@
 // the server, the development mailbox is not served through a proxy, and faults get clear answers.
 // T1 runs the real server (server/index.ts) as a process, so "the process keeps serving" is a
 // real process that did not exit, not an Express handle that swallowed an error.
+import { randomUUID } from 'node:crypto';
 import type { AddressInfo } from 'node:net';
 import type { Server } from 'node:http';
 import { parse as parseCsv } from 'csv-parse/sync';
@@ -9,6 +10,7 @@ import { afterAll, beforeAll, describe, expect, test } from 'vitest';
 import { createApp } from '../../server/app';
 import { trustProxyOf } from '../../server/config';
 import { createDb } from '../../server/db';
+import { completionFor, techPacket } from './factories';
 import { countRows, emailFor, startHarness, type Harness } from './harness';
 import { freeLoopbackPort, serverProcess, type ServerProcess } from './support/serverProcess';
 
@@ -172,6 +174,36 @@ describe('T10 clear answers under faults', () => {
         await allowAudit();
       }
       expect(await countRows(h.db, table, 'audit_events')).toEqual(before);
+    });
+
+    test('a resent invitation whose audit fails leaves the earlier link as it was', async () => {
+      const admin = await h.tokenFor('admin');
+      const invited = await h.call('POST', '/api/users', { token: admin, body: { email: 'resend-t10@demo.corewright.test', name: 'Resend Check', role: 'technician' } });
+      expect(invited.status).toBe(201);
+      const userId = invited.json.user.id as string;
+      const before = await h.db('invitations').where({ user_id: userId }).select('token_hash', 'expires_at');
+      await refuseAudit('user.invitation-resent');
+      try {
+        expect((await h.call('POST', `/api/users/${userId}/invitation`, { token: admin })).status).toBe(500);
+      } finally {
+        await allowAudit();
+      }
+      expect(await h.db('invitations').where({ user_id: userId }).select('token_hash', 'expires_at')).toEqual(before);
+    });
+
+    test('a sync batch that committed still answers 200 when its audit row fails (the replay would only get duplicates)', async () => {
+      const { token, packet } = await techPacket(h);
+      const record = completionFor(packet.workOrder.id, packet.cores[0]!);
+      await refuseAudit('sync.batch');
+      let res;
+      try {
+        res = await h.call('POST', '/api/sync', { token, body: { deviceId: randomUUID(), records: [record] } });
+      } finally {
+        await allowAudit();
+      }
+      expect(res.status).toBe(200);
+      expect(res.json.accepted).toEqual([record.clientId]);
+      expect(await h.db('completions').where({ id: record.clientId }).first('id')).toEqual({ id: record.clientId });
     });
 
     test('a device revoke whose audit fails leaves the tablet and its sessions as they were', async () => {
