@@ -1,5 +1,5 @@
 import type { AuditContext } from './context';
-import { ascending, keysMatching } from './enumerate';
+import { KeyList, keysMatching } from './enumerate';
 
 /**
  * Which keys turn each core, without testing every key against every core. A core turns
@@ -14,7 +14,7 @@ export function keysTurningIndexed(ctx: AuditContext): number[][] {
   const { profile, pinnings } = ctx;
   const chambers = profile.chambers;
   const masks = new Int32Array(chambers);
-  const scratch: number[] = [];
+  const scratch = new KeyList();
   return pinnings.map((pinning) => {
     if (pinning.chambers.length !== chambers) return [];
     for (let i = 0; i < chambers; i++) {
@@ -22,9 +22,8 @@ export function keysTurningIndexed(ctx: AuditContext): number[][] {
       for (const d of (pinning.chambers[i] as { depths: number[] }).depths) mask |= 1 << d;
       masks[i] = mask;
     }
-    // Collected in one reused list, sorted there and copied once at its final size.
-    scratch.length = 0;
+    // Collected in one reused typed list, sorted there and copied once at its final size.
     keysMatching(ctx, masks, pinning.openingsCount, scratch);
-    return ascending(scratch).slice();
+    return scratch.takeAscending();
   });
 }

@@ -1,5 +1,5 @@
 import type { AuditContext } from './context';
-import { sortCloseGroups, type CloseGroup } from './finders';
+import type { CloseGroup } from './finders';
 
 /**
  * Change keys differing in at most one position, by hashing: two keys agree everywhere
@@ -21,18 +21,24 @@ export function closeChangeKeysHashed(ctx: AuditContext): CloseGroup[] {
   const slotHead = new Int32Array(size);
   const slotTail = new Int32Array(size);
   const slotMixed = new Uint8Array(size);
-  const next = new Int32Array(n);
+  const P = profile.chambers;
+  // Per position, each key's successor in its bucket; and which key heads a bucket of
+  // differing bittings there. Kept for every position so the groups come out already in
+  // (first key, position) order, without sorting them.
+  const next = new Int32Array(n * P);
+  const heads = new Uint8Array(n * P);
   const used: number[] = [];
-  for (let p = 0, pow = 10 ** (profile.chambers - 1); p < profile.chambers; p++, pow /= 10) {
+  for (let p = 0, pow = 10 ** (P - 1); p < P; p++, pow /= 10) {
     slotHead.fill(-1);
     used.length = 0;
+    const base = p * n;
     for (let j = 0; j < n; j++) {
       const k = changeKeys[j] as number;
       const d = (depths[k] as number[])[p] as number;
       const code = (byBitting.codes[k] as number) - d * pow;
       let s = Math.imul(code, 0x9e3779b1) >>> (32 - bits);
       while (slotHead[s] !== -1 && slotCode[s] !== code) s = (s + 1) & mask;
-      next[j] = -1;
+      next[base + j] = -1;
       if (slotHead[s] === -1) {
         slotCode[s] = code;
         slotHead[s] = j;
@@ -41,17 +47,22 @@ export function closeChangeKeysHashed(ctx: AuditContext): CloseGroup[] {
       } else {
         const first = changeKeys[slotHead[s] as number] as number;
         if ((depths[first] as number[])[p] !== d) slotMixed[s] = 1;
-        next[slotTail[s] as number] = j;
+        next[base + (slotTail[s] as number)] = j;
       }
       slotTail[s] = j;
     }
     // A bucket of identical bittings is a duplicate, reported as such, not a close pair.
-    for (const s of used) {
-      if (!slotMixed[s]) continue;
+    for (const s of used) if (slotMixed[s]) heads[(slotHead[s] as number) * P + p] = 1;
+  }
+  // Change keys are ascending, so walking heads by key then position gives the order
+  // sortCloseGroups would.
+  for (let j = 0; j < n; j++) {
+    for (let p = 0; p < P; p++) {
+      if (!heads[j * P + p]) continue;
       const keys: number[] = [];
-      for (let j = slotHead[s] as number; j !== -1; j = next[j] as number) keys.push(changeKeys[j] as number);
+      for (let i = j; i !== -1; i = next[p * n + i] as number) keys.push(changeKeys[i] as number);
       groups.push({ position: p, keys });
     }
   }
-  return sortCloseGroups(groups);
+  return groups;
 }

@@ -1,6 +1,6 @@
 import { controlDepthMask } from '../keyOperates';
 import type { AuditContext } from './context';
-import { ascending, keysMatching } from './enumerate';
+import { KeyList, keysMatching } from './enumerate';
 
 /*
  * Which keys release each core, without testing every key against every core. A core
@@ -14,13 +14,12 @@ import { ascending, keysMatching } from './enumerate';
 export function keysReleasingIndexed(ctx: AuditContext): number[][] {
   const { profile, pinnings } = ctx;
   const masks = new Int32Array(profile.chambers);
-  const scratch: number[] = [];
+  const scratch = new KeyList();
   return pinnings.map((pinning) => {
     if (pinning.chambers.length !== profile.chambers || pinning.controlOpeningsCount === 0) return [];
     for (let i = 0; i < profile.chambers; i++) masks[i] = controlDepthMask(pinning.chambers[i]!, profile);
-    // Collected in one reused list, sorted there and copied once at its final size.
-    scratch.length = 0;
+    // Collected in one reused typed list, sorted there and copied once at its final size.
     keysMatching(ctx, masks, pinning.controlOpeningsCount, scratch);
-    return ascending(scratch).slice();
+    return scratch.takeAscending();
   });
 }
