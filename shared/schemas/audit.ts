@@ -1,6 +1,6 @@
 /** The audit log as the API answers it: names and words, never raw ids or JSON. */
 import { z } from 'zod';
-import { Id, IsoDate, Text, TzOffset } from './common';
+import { cleanText, Id, IsoDate, Text, TzOffset } from './common';
 
 export const AuditEvent = z.object({
   id: z.string(),
@@ -22,7 +22,8 @@ export type AuditPage = z.infer<typeof AuditPage>;
 const Prefixes = z
   .string()
   .trim()
-  .max(200, { error: 'action is one or more action prefixes like door. or bittings., separated by commas, at most 200 characters' });
+  .max(200, { error: 'action is one or more action prefixes like door. or bittings., separated by commas, at most 200 characters' })
+  .superRefine(cleanText({ names: true }));
 export const AuditQuery = z.strictObject({
   action: Prefixes.optional(),
   actorId: Id.optional(),
