@@ -7,6 +7,9 @@ import path from 'node:path';
 import { chromium, expect, test, type BrowserContext, type Page } from '@playwright/test';
 import { loadWithKeys as loadWithKeysOn, passAll as passAllOn } from '../support/bench';
 import { ownServer, type OwnServer } from '../support/ownServer';
+import { freshDemo } from '../support/freshDemo';
+
+test.beforeAll(freshDemo);
 
 const PASS = 'brass slate paper teal';
 const sizes = [

@@ -6,6 +6,9 @@ import { expect, test, type Page } from '@playwright/test';
 import { apiGet, apiSignIn, bearer } from '../console/api';
 import { buildCore } from '../support/bench';
 import { demo, signIn } from '../support/session';
+import { freshDemo } from '../support/freshDemo';
+
+test.beforeAll(freshDemo);
 
 const tablets = [
   { width: 1280, height: 800 },

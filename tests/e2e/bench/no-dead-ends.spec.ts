@@ -4,6 +4,9 @@
 // what goes and keeps a half-built core, which resumes after recovery. Touch, both tablet sizes.
 import { expect, test, type Browser, type Page } from '@playwright/test';
 import { DEMO_PASSWORD, TABLET_PASSPHRASE, demo } from '../support/session';
+import { freshDemo } from '../support/freshDemo';
+
+test.beforeAll(freshDemo);
 
 const sizes = [
   { width: 1280, height: 800 },

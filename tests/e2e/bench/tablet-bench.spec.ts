@@ -6,6 +6,9 @@ import { expect, test, type Page } from '@playwright/test';
 import { loadWithKeys } from '../support/bench';
 import { TABLET_PASSPHRASE, demo, signIn } from '../support/session';
 import { smallTargets } from '../support/touchTargets';
+import { freshDemo } from '../support/freshDemo';
+
+test.beforeAll(freshDemo);
 
 const sizes = [
   { width: 1280, height: 800 },

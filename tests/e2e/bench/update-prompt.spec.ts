@@ -5,6 +5,9 @@ import path from 'node:path';
 import { expect, test } from '@playwright/test';
 import { ownServer, type OwnServer } from '../support/ownServer';
 import { demo, signIn } from '../support/session';
+import { freshDemo } from '../support/freshDemo';
+
+test.beforeAll(freshDemo);
 
 let server: OwnServer;
 const swFile = path.join(process.env.CW_STATIC_DIR ?? 'dist', 'sw.js');

@@ -4,6 +4,9 @@ import { expect, test } from '@playwright/test';
 import type { Door, Key, KeySystem } from '../../../shared/schemas/records';
 import { demo, signIn } from '../support/session';
 import { apiGet, apiSignIn, csv } from './api';
+import { freshDemo } from '../support/freshDemo';
+
+test.beforeAll(freshDemo);
 
 const doorHeader = 'site,building,floor,room,label,fire_rated,key_system,key_symbol';
 const site = 'Quillon Hill College';

@@ -2,6 +2,9 @@
 import { expect, test } from '@playwright/test';
 import { demo, signIn } from '../support/session';
 import { waitForMail } from './api';
+import { freshDemo } from '../support/freshDemo';
+
+test.beforeAll(freshDemo);
 
 test('an invited user sets a password from the e-mail link and signs in', async ({ page }) => {
   const email = `new.bench.${Date.now()}@demo.corewright.test`;

@@ -6,6 +6,9 @@ import type { Door, Key, KeySystem } from '../../../shared/schemas/records';
 import { naturally } from '../../../shared/words';
 import { demo, signIn } from '../support/session';
 import { apiGet, apiSignIn, bearer } from './api';
+import { freshDemo } from '../support/freshDemo';
+
+test.beforeAll(freshDemo);
 
 test.use({ viewport: { width: 1440, height: 900 } });
 

@@ -3,6 +3,9 @@ import { expect, test, type Page } from '@playwright/test';
 import type { Door, KeySystem, WorkOrder } from '../../../shared/schemas/records';
 import { demo, signIn } from '../support/session';
 import { apiGet, apiSignIn } from './api';
+import { freshDemo } from '../support/freshDemo';
+
+test.beforeAll(freshDemo);
 
 test.use({ viewport: { width: 1440, height: 900 } });
 

@@ -3,6 +3,9 @@ import { expect, test } from '@playwright/test';
 import type { WorkOrder } from '../../../shared/schemas/records';
 import { demo } from '../support/session';
 import { apiGet, apiSignIn, bearer, signInAnywhere } from './api';
+import { freshDemo } from '../support/freshDemo';
+
+test.beforeAll(freshDemo);
 
 const pages = ['/overview', '/work-orders', '/work-orders/new', '/completions?result=failed', '/key-systems', '/profiles', '/doors', '/users', '/audit'];
 

@@ -8,6 +8,9 @@ import type { WorkOrder } from '../../../shared/schemas/records';
 import { partKind } from '../support/bench';
 import { demo, signIn } from '../support/session';
 import { apiGet, apiSignIn, bearer, type ApiSession } from './api';
+import { freshDemo } from '../support/freshDemo';
+
+test.beforeAll(freshDemo);
 
 const range = (a: number, b: number) => Array.from({ length: b - a + 1 }, (_, i) => a + i);
 const shot = async (page: Page, name: string) => {

@@ -6,6 +6,9 @@ import type { Packet } from '../../../shared/schemas/packet';
 import { buildCore } from '../support/bench';
 import { demo, signIn } from '../support/session';
 import { apiGet, apiSignIn, waitForMail } from './api';
+import { freshDemo } from '../support/freshDemo';
+
+test.beforeAll(freshDemo);
 
 test('a supervisor plans and assigns a work order; the technician builds a core on the Bench; the Completion log shows it', async ({ page, browser }) => {
   await signIn(page, demo.supervisor);

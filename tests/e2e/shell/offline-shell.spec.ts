@@ -1,6 +1,9 @@
 // The shell: sign-in, role-based navigation, and an offline reload served by the service worker.
 import { expect, test } from '@playwright/test';
 import { answerVault, demo, loadedFontFamilies, serviceWorkerReady, signIn } from '../support/session';
+import { freshDemo } from '../support/freshDemo';
+
+test.beforeAll(freshDemo);
 
 test('a wrong password shows the server message and stays on sign-in', async ({ page }) => {
   await page.goto('/sign-in');
