@@ -48,9 +48,13 @@ async function crews(base: string, db: Knex, count: number): Promise<{ token: st
   return out;
 }
 
-/** L1: 20 devices sync batches of 50 completions at once for `seconds`. */
-export async function syncLoad(base: string, db: Knex, opts: { clients: number; batch: number; seconds: number }): Promise<LoadFigures> {
-  const crewList = await crews(base, db, opts.clients);
+/**
+ * L1: 20 devices sync batches of 50 completions at once for `seconds`. With several server
+ * addresses (processes on one database), device i talks to bases[i % n], as a load balancer
+ * pinning each client would spread them.
+ */
+export async function syncLoad(bases: string[], db: Knex, opts: { clients: number; batch: number; seconds: number }): Promise<LoadFigures> {
+  const crewList = await crews(bases[0]!, db, opts.clients);
   const before = Number((await db('completions').count({ n: '*' }).first())!.n);
   const latencies: number[] = [];
   let sent = 0;
@@ -69,7 +73,7 @@ export async function syncLoad(base: string, db: Knex, opts: { clients: number; 
           return completionFor(pick.wo, pick.core);
         });
         const t0 = performance.now();
-        const r = await json(base, 'POST', '/api/sync', token, { deviceId, records });
+        const r = await json(bases[i % bases.length]!, 'POST', '/api/sync', token, { deviceId, records });
         latencies.push(performance.now() - t0);
         sent += records.length;
         if (r.status !== 200) errors++;
@@ -80,6 +84,7 @@ export async function syncLoad(base: string, db: Knex, opts: { clients: number; 
   const after = Number((await db('completions').count({ n: '*' }).first())!.n);
   latencies.sort((a, b) => a - b);
   return {
+    processes: bases.length,
     clients: opts.clients,
     batchSize: opts.batch,
     seconds: opts.seconds,

@@ -26,7 +26,8 @@ if (want('engine')) {
   results.engine = JSON.parse(readFileSync(path.join(root, 'bench/keying-results.json'), 'utf8'));
 }
 
-async function withServer<T>(run: (base: string, db: ReturnType<typeof createDb>, tmp: string) => Promise<T>, opts: { build?: boolean } = {}): Promise<T> {
+/** A throw-away cluster with `processes` API server processes on it (default one); `run` gets their addresses. */
+async function withServer<T>(run: (bases: string[], db: ReturnType<typeof createDb>, tmp: string) => Promise<T>, opts: { build?: boolean; processes?: number } = {}): Promise<T> {
   const tmp = mkdtempSync('/tmp/corewright-bench-');
   chmodSync(tmp, 0o755);
   if (opts.build) {
@@ -37,23 +38,30 @@ async function withServer<T>(run: (base: string, db: ReturnType<typeof createDb>
   const cluster = startCluster({ dataDir, port: await freePort(56432) });
   const url = await ensureDatabase(cluster, 'corewright_bench');
   const db = createDb(url);
-  const port = await freePort(8280);
-  let server: ReturnType<typeof spawn> | undefined;
+  const servers: ReturnType<typeof spawn>[] = [];
   try {
     await migrateLatest(db);
-    server = spawn(process.execPath, ['--import', 'tsx', 'tests/e2e/support/serve.ts'], {
-      cwd: root,
-      stdio: ['ignore', 'ignore', 'inherit'],
-      env: { ...process.env, NODE_ENV: 'test', DATABASE_URL: url, PORT: String(port), CW_SECRETS_FILE: path.join(tmp, 'secrets.json'), CW_STATIC_DIR: path.join(tmp, 'dist'), CW_DB_POOL: '20', CW_SIGN_IN_ATTEMPTS: '1000' },
-    });
-    const base = `http://127.0.0.1:${port}`;
-    for (let i = 0; i < 120; i++) {
-      if (await fetch(`${base}/api/health`).then((r) => r.ok).catch(() => false)) break;
-      await new Promise((r) => setTimeout(r, 500));
+    const bases: string[] = [];
+    for (let n = 0; n < (opts.processes ?? 1); n++) {
+      const port = await freePort(8280 + n * 10);
+      // Every process shares the database and the secrets file, as N instances behind a proxy do.
+      servers.push(
+        spawn(process.execPath, ['--import', 'tsx', 'tests/e2e/support/serve.ts'], {
+          cwd: root,
+          stdio: ['ignore', 'ignore', 'inherit'],
+          env: { ...process.env, NODE_ENV: 'test', DATABASE_URL: url, PORT: String(port), CW_SECRETS_FILE: path.join(tmp, 'secrets.json'), CW_STATIC_DIR: path.join(tmp, 'dist'), CW_DB_POOL: '20', CW_SIGN_IN_ATTEMPTS: '1000' },
+        }),
+      );
+      const base = `http://127.0.0.1:${port}`;
+      for (let i = 0; i < 120; i++) {
+        if (await fetch(`${base}/api/health`).then((r) => r.ok).catch(() => false)) break;
+        await new Promise((r) => setTimeout(r, 500));
+      }
+      bases.push(base);
     }
-    return await run(base, db, tmp);
+    return await run(bases, db, tmp);
   } finally {
-    server?.kill('SIGTERM');
+    for (const server of servers) server.kill('SIGTERM');
     await db.destroy();
     stopCluster(dataDir);
     rmSync(tmp, { recursive: true, force: true });
@@ -61,20 +69,29 @@ async function withServer<T>(run: (base: string, db: ReturnType<typeof createDb>
 }
 
 if (want('load')) {
-  await withServer(async (base, db) => {
-    console.log('[bench] L1: sync load, 20 clients, batches of 50...');
-    results.syncLoad = await syncLoad(base, db, { clients: 20, batch: 50, seconds: Number(process.env.CW_BENCH_SECONDS ?? 30) });
+  const seconds = Number(process.env.CW_BENCH_SECONDS ?? 30);
+  await withServer(async ([base], db) => {
+    console.log('[bench] L1: sync load, 20 clients, batches of 50, one API process...');
+    results.syncLoad = await syncLoad([base!], db, { clients: 20, batch: 50, seconds });
     console.log(results.syncLoad);
     console.log('[bench] L2: completion log on 100,000 rows...');
-    results.completionLog = await completionLog(base, db, { rows: 100_000, samples: 200 });
+    results.completionLog = await completionLog(base!, db, { rows: 100_000, samples: 200 });
     console.log(results.completionLog);
   });
+  await withServer(
+    async (bases, db) => {
+      console.log('[bench] L1: sync load, 20 clients, batches of 50, two API processes on one database...');
+      results.syncLoadTwoProcesses = await syncLoad(bases, db, { clients: 20, batch: 50, seconds });
+      console.log(results.syncLoadTwoProcesses);
+    },
+    { processes: 2 },
+  );
 }
 
 if (want('browser')) {
   const { benchBrowser } = await import('../bench/browser');
   ensureChromium();
-  results.browser = await withServer((base) => benchBrowser(base), { build: true });
+  results.browser = await withServer(([base]) => benchBrowser(base!), { build: true });
   console.log(JSON.stringify(results.browser, null, 2));
 }
 

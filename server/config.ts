@@ -25,6 +25,8 @@ export interface Config {
   /** Failed sign-ins allowed per e-mail and address before a 429. */
   signInAttempts: number;
   signInWindowMs: number;
+  /** How often each instance sends owed mail (ms); every instance may, each row under a row lock. */
+  owedMailIntervalMs: number;
   publicUrl: string;
   staticDir: string | null;
   smtp: { host: string; port: number } | null;
@@ -82,6 +84,7 @@ export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
     trustProxy: trustProxyOf(env.CW_TRUST_PROXY),
     signInAttempts: Number(env.CW_SIGN_IN_ATTEMPTS ?? 5),
     signInWindowMs: Number(env.CW_SIGN_IN_WINDOW_MS ?? 15 * 60 * 1000),
+    owedMailIntervalMs: Number(env.CW_OWED_MAIL_INTERVAL_MS ?? 60_000),
     publicUrl: env.CW_PUBLIC_URL ?? `http://127.0.0.1:${port}`,
     staticDir: env.CW_STATIC_DIR === '' ? null : (env.CW_STATIC_DIR ?? path.join(root, 'dist')),
     smtp: smtpPort ? { host: env.CW_SMTP_HOST ?? '127.0.0.1', port: smtpPort } : null,

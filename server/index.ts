@@ -4,6 +4,7 @@ import { loadConfig } from './config';
 import { createDb } from './db';
 import { startFakeSmtp, type FakeSmtp } from './dev/fakeSmtp';
 import { createMailer } from './services/mail';
+import { sweepFailures } from './services/failureLimiter';
 import { sendPending } from './services/notifier';
 
 // A promise nobody awaited must never stop the server for every other user (T1): log it, keep serving.
@@ -22,10 +23,14 @@ if (process.env.CW_FAKE_SMTP === '1' && config.env !== 'production') {
 const db = createDb(config.databaseUrl);
 const mailer = createMailer(config);
 const app = createApp({ db, config, smtp, mailer });
-// Mail owed by work that landed before a crash or restart, then every minute.
-const sendOwed = () => void sendPending({ db, mailer, config }).catch((err) => console.error('[server] sending notifications failed', (err as Error).message));
+// Mail owed by work that landed before a crash or restart, then every minute (CW_OWED_MAIL_INTERVAL_MS).
+// Every instance runs this: each row is sent under a row lock, so N instances never send it twice.
+const sendOwed = () => {
+  void sendPending({ db, mailer, config }).catch((err) => console.error('[server] sending notifications failed', (err as Error).message));
+  void sweepFailures(db).catch(() => {}); // ended lockout windows; harmless when the database is away
+};
 sendOwed();
-const owedTimer = setInterval(sendOwed, 60_000);
+const owedTimer = setInterval(sendOwed, config.owedMailIntervalMs);
 owedTimer.unref();
 const server = app.listen(config.port, config.host, () => {
   console.log(`[server] Corewright on http://${config.host}:${config.port}`);

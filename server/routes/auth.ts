@@ -8,7 +8,7 @@ import { HttpError, unauthenticated } from '../errors';
 import { parse } from '../middleware/validate';
 import { actorOf, requireAuth } from '../middleware/auth';
 import { audit, auditQuietly } from '../services/audit';
-import { failureLimiter } from '../services/failureLimiter';
+import { sharedFailureLimiter } from '../services/failureLimiter';
 import { verifyPassword } from '../services/passwords';
 import { DEVICE_REVOKED_MESSAGE } from '../services/devices';
 import { createSession, refreshSession, revokeSession } from '../services/sessions';
@@ -20,7 +20,7 @@ const countsAsFailure = (err: unknown) => err instanceof HttpError && [400, 401,
 
 export function authRouter(db: Knex, config: Config): Router {
   const router = Router();
-  const failures = failureLimiter(config.signInAttempts, config.signInWindowMs);
+  const failures = sharedFailureLimiter(db, config.signInAttempts, config.signInWindowMs);
   // The raw e-mail is only a map key here; nothing unvalidated is ever written.
   const rawEmail = (req: Request) => (typeof req.body?.email === 'string' ? req.body.email.trim().toLowerCase().slice(0, 254) : '');
   const ipKey = (req: Request) => ipKeyGenerator(req.ip ?? '').slice(0, 64);
@@ -36,15 +36,15 @@ export function authRouter(db: Knex, config: Config): Router {
 
   /** Runs an attempt under the failure lockout: only attempts that fail count toward it. */
   async function limited(key: string, req: Request, res: Response, lockedAction: string, attempt: () => Promise<void>): Promise<void> {
-    const wait = failures.lockedFor(key);
+    const wait = await failures.lockedFor(key);
     if (wait) return locked(req, res, wait, lockedAction);
     try {
       await attempt();
-      failures.succeed(key);
     } catch (err) {
-      if (countsAsFailure(err)) failures.fail(key);
+      if (countsAsFailure(err)) await failures.fail(key);
       throw err;
     }
+    await failures.succeed(key);
   }
 
   router.post('/auth/sign-in', (req, res) =>

@@ -83,7 +83,7 @@ export async function serverProcess(opts: ServerProcessOptions = {}): Promise<Se
   installExitHook();
   const port = await freeLoopbackPort();
   const base = `http://127.0.0.1:${port}`;
-  const readyTimeoutMs = opts.readyTimeoutMs ?? 20_000;
+  const readyTimeoutMs = opts.readyTimeoutMs ?? 60_000; // a cold tsx start on a loaded 2-core machine takes up to ~20 s
   const exitTimeoutMs = opts.exitTimeoutMs ?? 5_000;
   let child: ChildProcess | undefined;
   let exited: Promise<void> = Promise.resolve();
