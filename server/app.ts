@@ -7,6 +7,7 @@ import type { Ctx } from './context';
 import type { FakeSmtp } from './dev/fakeSmtp';
 import { errorHandler, notFoundApi } from './errors';
 import { requireAuth } from './middleware/auth';
+import { auditEventsRouter } from './routes/auditEvents';
 import { authRouter } from './routes/auth';
 import { completionsRouter } from './routes/completions';
 import { installsRouter } from './routes/installs';
@@ -16,6 +17,7 @@ import { devicesRouter } from './routes/devices';
 import { doorsRouter } from './routes/doors';
 import { healthRouter } from './routes/health';
 import { keySystemsRouter } from './routes/keySystems';
+import { profilesRouter } from './routes/profiles';
 import { syncRouter } from './routes/sync';
 import { usersRouter } from './routes/users';
 import { workOrdersRouter } from './routes/workOrders';
@@ -79,6 +81,8 @@ export function createApp({ db, config, mailer, smtp, log }: AppDeps): Express {
   api.use(requireAuth(db, config));
   // Every router below states its roles with allow(...).
   api.use(usersRouter(ctx));
+  api.use(auditEventsRouter(ctx));
+  api.use(profilesRouter(ctx));
   api.use(keySystemsRouter(ctx));
   api.use(doorsRouter(ctx));
   api.use(coresRouter(ctx));

@@ -9,7 +9,7 @@ import type { Role } from '../../shared/schemas/auth';
 import { forbidden, HttpError, unauthenticated } from '../errors';
 import { DEVICE_REVOKED_MESSAGE } from '../services/devices';
 import { verifyAccessToken } from '../services/tokens';
-import type { Actor } from '../services/audit';
+import type { Actor } from '../services/auditTrail';
 
 export interface AuthedUser {
   id: string;

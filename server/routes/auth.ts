@@ -7,7 +7,7 @@ import { acceptInvitation } from '../services/users';
 import { HttpError, unauthenticated } from '../errors';
 import { parse } from '../middleware/validate';
 import { actorOf, requireAuth } from '../middleware/auth';
-import { audit, auditQuietly } from '../services/audit';
+import { audit, auditQuietly } from '../services/auditTrail';
 import { sharedFailureLimiter } from '../services/failureLimiter';
 import { verifyPassword } from '../services/passwords';
 import { DEVICE_REVOKED_MESSAGE } from '../services/devices';

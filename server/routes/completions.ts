@@ -6,7 +6,7 @@ import { Id } from '../../shared/schemas/common';
 import type { Ctx } from '../context';
 import { actorOf, allow } from '../middleware/auth';
 import { parse } from '../middleware/validate';
-import { audit } from '../services/audit';
+import { audit } from '../services/auditTrail';
 import { neutraliseCell, safeQuoting } from '../services/csvSafe';
 import { completionRowsForExport, getCompletion, listCompletions, revealPinSizes } from '../services/completions';
 

@@ -4,7 +4,7 @@ import { Id, Text } from '../../shared/schemas/common';
 import type { Ctx } from '../context';
 import { actorOf, allow } from '../middleware/auth';
 import { parse } from '../middleware/validate';
-import { audit } from '../services/audit';
+import { audit } from '../services/auditTrail';
 import { listDevices, revokeDevice, touchDevice } from '../services/devices';
 import { HttpError } from '../errors';
 

@@ -5,11 +5,11 @@ import { DoorInput, DoorUpdate } from '../../shared/schemas/records';
 import type { Ctx } from '../context';
 import { badRequest } from '../errors';
 import { actorOf, allow } from '../middleware/auth';
+import { upload } from '../middleware/upload';
 import { parse } from '../middleware/validate';
-import { audit } from '../services/audit';
+import { audit } from '../services/auditTrail';
 import { importDoors } from '../services/csvImport';
 import { createDoors, doorHistory, getDoor, listDoors, updateDoor } from '../services/doors';
-import { upload } from './keySystems';
 
 const DoorFilter = z.strictObject({
   q: Text(80, 'q').optional(),

@@ -1,22 +1,20 @@
 import { Router } from 'express';
-import multer from 'multer';
 import { z } from 'zod';
 import { auditSystem, progressKeys, KeyingError, type AuditFinding } from '../../shared/keying';
 import { Id, Notes } from '../../shared/schemas/common';
-import { KeyInput, KeyReplace, KeySystemCreate, KeySystemUpdate, KeyUpdate, ProfileId, ProfileInput, ProgressionInput, type HeldKey } from '../../shared/schemas/records';
+import { KeyInput, KeyReplace, KeySystemCreate, KeySystemUpdate, KeyUpdate, ProgressionInput, type HeldKey } from '../../shared/schemas/records';
 import type { Ctx } from '../context';
 import { badRequest } from '../errors';
 import { actorOf, allow } from '../middleware/auth';
+import { upload } from '../middleware/upload';
 import { parse } from '../middleware/validate';
-import { audit } from '../services/audit';
+import { audit } from '../services/auditTrail';
 import { acknowledge, withAcknowledgements } from '../services/auditAcknowledgements';
 import { importKeys } from '../services/csvImport';
 import { coresOperatedBy } from '../services/keyDoors';
 import { addKeys, replaceKey, createSystem, getSystem, listKeys, listSystems, loadSystem, placementSystemOf, updateKey, updateSystem } from '../services/keySystems';
-import { createProfile, listProfiles, updateProfile } from '../services/profiles';
 import { auditInputFor } from '../services/systemAudit';
 
-export const upload = multer({ storage: multer.memoryStorage(), limits: { fileSize: 1024 * 1024, files: 1 } });
 const IdParam = z.object({ id: Id });
 const Reveal = z.object({ reveal: z.enum(['0', '1']).optional() });
 const Acknowledge = z.strictObject({
@@ -32,27 +30,6 @@ export function keySystemsRouter({ db, sealer, config }: Ctx): Router {
     const findings = await withAcknowledgements(db, id, config.dataKey, input.audit, auditSystem(input.profile, input.audit));
     return { findings, keys: input.audit.keys.length, cores: input.audit.cores.length };
   }
-
-  r.get('/profiles', allow('supervisor', 'admin'), async (_req, res) => res.json({ profiles: await listProfiles(db) }));
-  r.post('/profiles', allow('admin'), async (req, res) => {
-    const input = parse(ProfileInput, req.body, 'The profile');
-    const profile = await db.transaction(async (trx) => {
-      const created = await createProfile(trx, input);
-      await audit(trx, actorOf(req), 'profile.created', { type: 'profile', id: created.id });
-      return created;
-    });
-    res.status(201).json({ profile });
-  });
-  r.put('/profiles/:pid', allow('admin'), async (req, res) => {
-    const pid = parse(ProfileId, req.params.pid, 'The profile id');
-    const input = parse(ProfileInput, req.body, 'The profile');
-    const profile = await db.transaction(async (trx) => {
-      const updated = await updateProfile(trx, pid, input);
-      await audit(trx, actorOf(req), 'profile.updated', { type: 'profile', id: updated.id });
-      return updated;
-    });
-    res.json({ profile });
-  });
 
   r.get('/key-systems', allow('supervisor', 'admin'), async (_req, res) => res.json({ keySystems: await listSystems(db) }));
   r.post('/key-systems', allow('admin'), async (req, res) => {

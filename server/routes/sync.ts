@@ -3,7 +3,7 @@ import { SyncRequest } from '../../shared/schemas/sync';
 import type { Ctx } from '../context';
 import { actorOf, allow } from '../middleware/auth';
 import { parse } from '../middleware/validate';
-import { audit, auditQuietly } from '../services/audit';
+import { audit, auditQuietly } from '../services/auditTrail';
 import { touchDevice } from '../services/devices';
 import { landBatch } from '../services/sync';
 import { sendPending } from '../services/notifier';

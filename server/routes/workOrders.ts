@@ -6,7 +6,7 @@ import type { Ctx } from '../context';
 import { badRequest, forbidden } from '../errors';
 import { actorOf, allow } from '../middleware/auth';
 import { parse } from '../middleware/validate';
-import { audit } from '../services/audit';
+import { audit } from '../services/auditTrail';
 import { mails } from '../services/mail';
 import { addDoors, buildPacket, createWorkOrder, getWorkOrder, iso, pinningFor, removeCore, updateWorkOrder, workOrderQuery } from '../services/workOrders';
 import { chainOf, loadSystem } from '../services/keySystems';

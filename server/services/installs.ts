@@ -1,5 +1,6 @@
 /** Installs the office still has to look at: a core in another door than the one it was built for (T4). */
 import type { Knex } from 'knex';
+import { badRequest, notFound } from '../errors';
 
 export async function openMismatches(db: Knex) {
   const rows = await db('installs as i')
@@ -24,4 +25,22 @@ export async function openMismatches(db: Knex) {
       db.raw(`(select cp.id from completions cp where cp.core_id = c.id and cp.result = 'passed' order by cp.finished_at desc limit 1) as "completionId"`),
     );
   return rows.map((r) => ({ ...r, installedAt: new Date(r.installedAt).toISOString() }));
+}
+
+/**
+ * A supervisor marks an install into another door reviewed: 404 for no such install, 400 when it
+ * went into its planned door. True when this call marked it (false: it was reviewed already).
+ */
+export async function markMismatchReviewed(db: Knex, id: string, userId: string): Promise<boolean> {
+  const row = (await db('installs').where({ id }).first('door_mismatch', 'reviewed_at')) as { door_mismatch: boolean; reviewed_at: Date | null } | undefined;
+  if (!row) throw notFound('That install');
+  if (!row.door_mismatch) throw badRequest('This install went into its planned door: there is nothing to review.');
+  if (row.reviewed_at) return false;
+  const n = await db('installs').where({ id }).whereNull('reviewed_at').update({ reviewed_by: userId, reviewed_at: db.fn.now() });
+  return n > 0;
+}
+
+/** Who reviewed an install, and when. */
+export async function reviewOf(db: Knex, id: string) {
+  return db('installs as i').leftJoin('users as u', 'u.id', 'i.reviewed_by').where('i.id', id).first('i.id', 'i.reviewed_at as reviewedAt', 'u.name as reviewedBy');
 }

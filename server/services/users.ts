@@ -17,6 +17,11 @@ export async function listUsers(db: Knex, id?: string) {
     .select('u.id', 'u.email', 'u.name', 'u.role', 'u.active', 'u.created_at as createdAt', db.raw('(u.password_hash is not null) as "hasPassword"'));
 }
 
+/** Active technicians and supervisors, for assigning work orders. */
+export async function listTechnicians(db: Knex) {
+  return db('users').where({ active: true }).whereIn('role', ['technician', 'supervisor']).orderBy('name').select('id', 'name', 'email', 'role');
+}
+
 export async function inviteUser(db: Knex, input: InviteRequest, by: string): Promise<{ userId: string; token: string }> {
   return db.transaction(async (trx) => {
     if (await trx('users').where({ email: input.email }).first('id')) throw conflict(`${input.email} has an account already.`, [{ field: 'email', message: 'already has an account' }]);

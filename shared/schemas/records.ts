@@ -209,6 +209,7 @@ export const CoreUpdate = z.strictObject({
   doorId: Id.nullable().optional(),
   state: z.literal('retired').optional(),
 });
+export type CoreUpdate = z.infer<typeof CoreUpdate>;
 
 export const Core = z.object({
   id: Id,

@@ -1,9 +1,9 @@
 /** The audit trail (admin): names and words from the server; the CSV export is audited there. */
-import { AuditPage } from '@shared/schemas/audit';
+import { AuditPage } from '@shared/schemas/auditEvents';
 import { authorizedFetch, errorOf, request } from './http';
 import { toQuery } from './doors';
 
-export type { AuditEvent } from '@shared/schemas/audit';
+export type { AuditEvent } from '@shared/schemas/auditEvents';
 
 export interface AuditFilter {
   action?: string;

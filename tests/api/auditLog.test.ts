@@ -2,7 +2,7 @@
 // filters by person, action and day, and an audited CSV export. Cases A-3 and A7 of
 // ../shared/design/reliability.md; CSV per RFC 4180.
 import { afterAll, beforeAll, describe, expect, test } from 'vitest';
-import { AuditPage } from '../../shared/schemas/audit';
+import { AuditPage } from '../../shared/schemas/auditEvents';
 import { startHarness, type Harness } from './harness';
 
 let h: Harness;

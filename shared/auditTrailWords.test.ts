@@ -1,5 +1,5 @@
 import { describe, expect, test } from 'vitest';
-import { actionName, detailLine } from './auditWords';
+import { actionName, detailLine } from './auditTrailWords';
 
 // Common practice for audit trails (OWASP logging cheat sheet: logs a person can read): names, not codes or JSON.
 describe('detailLine', () => {

@@ -1,9 +1,10 @@
 /**
- * The audit log as people read it: the actor's name, the record named (door BL-101, work order
- * #12, key AA3 in Quillon Hill College), and the details as a line of words (shared/auditWords.ts).
+ * The audit trail's events as people read them (the list and the CSV export): the actor's name, the record named (door BL-101, work order
+ * #12, key AA3 in Quillon Hill College), and the details as a line of words (shared/auditTrailWords.ts).
  */
 import type { Knex } from 'knex';
-import { actionName, detailLine } from '../../shared/auditWords';
+import { actionName, detailLine } from '../../shared/auditTrailWords';
+import type { AuditPage, AuditQuery } from '../../shared/schemas/auditEvents';
 import { whereDays } from './dates';
 
 export interface AuditFilter {
@@ -29,7 +30,7 @@ interface Row {
   details: Record<string, unknown> | null;
 }
 
-export function auditQuery(db: Knex, f: AuditFilter) {
+function auditQuery(db: Knex, f: AuditFilter) {
   const q = db('audit_events as e').leftJoin('users as u', 'u.id', 'e.actor_id');
   const prefixes = (f.action ?? '').split(',').map((p) => p.trim()).filter(Boolean);
   if (prefixes.length) q.where((w) => prefixes.forEach((p) => w.orWhere('e.action', 'like', `${p.replace(/[%_\\]/g, (c) => `\\${c}`)}%`)));
@@ -39,7 +40,7 @@ export function auditQuery(db: Knex, f: AuditFilter) {
   return q;
 }
 
-export const auditColumns = ['e.id', 'e.at', 'e.actor_id as actorId', 'e.actor_email as actorEmail', 'u.name as actorName', 'e.action', 'e.target_type as targetType', 'e.target_id as targetId', 'e.ip', 'e.details'];
+const auditColumns = ['e.id', 'e.at', 'e.actor_id as actorId', 'e.actor_email as actorEmail', 'u.name as actorName', 'e.action', 'e.target_type as targetType', 'e.target_id as targetId', 'e.ip', 'e.details'];
 
 const uuid = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
 const typeWords: Record<string, string> = { 'key-system': 'Key system', key: 'Key', door: 'Door', core: 'Core', 'work-order': 'Work order', 'work-order-packet': 'Packet of work order', user: 'User', profile: 'Profile', device: 'Tablet', completion: 'Completion', 'sync-record': 'A synced record' };
@@ -87,7 +88,7 @@ export interface ReadableEvent {
   summary: string;
 }
 
-export async function readable(db: Knex, rows: Row[]): Promise<ReadableEvent[]> {
+async function readable(db: Knex, rows: Row[]): Promise<ReadableEvent[]> {
   const names = await namesFor(db, rows);
   // Profiles are keyed by their id; show their label.
   const profileIds = [...new Set(rows.filter((r) => r.targetType === 'profile' && r.targetId).map((r) => r.targetId!))];
@@ -105,4 +106,26 @@ export async function readable(db: Knex, rows: Row[]): Promise<ReadableEvent[]> 
     ip: r.ip,
     summary: detailLine(r.action, r.details, (id) => names.get(id)?.replace(/ \(.*\)$/, '')),
   }));
+}
+
+/** One page of the filtered trail, newest first, with the total the filter matches. */
+export async function listAuditEvents(db: Knex, q: AuditQuery): Promise<AuditPage> {
+  const base = auditQuery(db, q);
+  const { total } = ((await base.clone().count({ total: '*' })) as { total: number }[])[0]!;
+  const rows = await base
+    .orderBy('e.id', 'desc')
+    .limit(q.pageSize)
+    .offset((q.page - 1) * q.pageSize)
+    .select(auditColumns);
+  return { rows: await readable(db, rows), total: Number(total), page: q.page, pageSize: q.pageSize };
+}
+
+/** The filtered trail for the CSV export, newest first, read a thousand at a time up to `limit` events. */
+export async function* auditEventsForExport(db: Knex, f: AuditFilter, limit = 50_000): AsyncGenerator<ReadableEvent> {
+  const base = auditQuery(db, f).orderBy('e.id', 'desc').select(auditColumns);
+  for (let offset = 0; offset < limit; offset += 1000) {
+    const rows = await base.clone().limit(1000).offset(offset);
+    yield* await readable(db, rows);
+    if (rows.length < 1000) return;
+  }
 }
