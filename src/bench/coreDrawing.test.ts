@@ -1,6 +1,6 @@
 import { describe, expect, test } from 'vitest';
 import { pinCore } from '@shared/keying';
-import { LABEL_FONT, TIP, UNIT, coreDrawing, labelY } from './coreDrawing';
+import { LABEL_FONT, NOW_FONT, TIP, UNIT, coreDrawing, labelY } from './coreDrawing';
 import { next, startSession } from './session';
 import { partStatus } from './sessionView';
 import { loadingSteps } from './steps';
@@ -69,5 +69,35 @@ describe('Core view labels', () => {
     // measured: the Core view column is about 440 px wide at 1280x800 landscape with the menu shown
     const d = coreDrawing(loadingSteps(pinCore(sfic6, mixedKeys), sfic6), { ...sfic6, chambers: 7 });
     expect((LABEL_FONT * 440) / d.width).toBeGreaterThanOrEqual(12);
+  });
+});
+
+describe('Core view "now" pointer', () => {
+  // the issue: the pointer ran into the next chamber. Our own rule: it stays in the gap beside the current part.
+  test('the pointer sits in the gap beside the current part, clear of the next chamber and of the shear-line words, in every chamber', () => {
+    const plan = loadingSteps(pinCore(sfic6, mixedKeys), sfic6);
+    for (const current of plan.filter((s) => s.chamber !== null)) {
+      const status = Object.fromEntries(plan.map((s) => [s.id, s.id === current.id ? 'current' : 'pending'] as const));
+      const d = coreDrawing(plan, sfic6, status);
+      const part = d.parts.find((p) => p.id === current.id)!;
+      const { box } = d.pointer!;
+      expect(box.x, current.id).toBeGreaterThan(part.x + part.w);
+      const next = d.chambers.find((c) => c.chamber === part.chamber + 1);
+      // the next chamber's parts start at its x; after the last chamber the shear-line words start at x2 + 6
+      const limit = next ? next.x : d.lines.x2 + 6;
+      expect(box.x + box.w, current.id).toBeLessThan(limit);
+      expect(box.y + box.h / 2).toBe(part.y + (part.h + part.tip) / 2);
+      // "now" (three glyphs at most 0.6 em wide each, from memory of Roboto's metrics) fits over its own chamber,
+      // under the chamber number (baseline 26) and above the cap
+      const chamber = d.chambers.find((c) => c.chamber === part.chamber)!;
+      expect(d.pointer!.word.x).toBe(chamber.cx);
+      expect(3 * 0.6 * NOW_FONT).toBeLessThan(part.w);
+      expect(d.pointer!.word.y - NOW_FONT * 0.55).toBeGreaterThan(26);
+      expect(d.pointer!.word.y).toBeLessThan(chamber.cap.y);
+    }
+  });
+
+  test('no pointer when no part is current (springs, cap, a finished core)', () => {
+    expect(coreDrawing(loadingSteps(pinCore(sfic6, primerKeys), sfic6), sfic6).pointer).toBeNull();
   });
 });

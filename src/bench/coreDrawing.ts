@@ -27,6 +27,10 @@ export const TIP = 24;
 const FOOT = 48;
 /** Part labels, in drawing units (CoreView.vue uses the same figure). */
 export const LABEL_FONT = 21;
+/** The "now" pointer: a triangle in the gap beside the current part, clear of the next chamber. */
+export const POINTER = { inset: 3, width: 14, height: 20 } as const;
+/** The word "now" over the current chamber, between its number and its cap (CoreView.vue's figure). */
+export const NOW_FONT = 19;
 
 export interface DrawnPart {
   id: string;
@@ -67,6 +71,8 @@ export interface CoreDrawing {
   parts: DrawnPart[];
   chambers: DrawnChamber[];
   lines: { x1: number; x2: number; operatingY: number; controlY: number };
+  /** Marks the current part; null when no part is current (springs, cap, key checks). */
+  pointer: { points: string; box: { x: number; y: number; w: number; h: number }; word: { x: number; y: number } } | null;
   ends: { left: 'Back' | 'Front'; right: 'Back' | 'Front' };
   summary: string;
 }
@@ -121,8 +127,25 @@ export function coreDrawing(plan: readonly LoadingStep[], profile: Profile, stat
   return {
     width, height: baseY + TIP + FOOT, baseY, floorY: baseY + TIP, parts, chambers,
     lines: { x1: LEFT - 12, x2, operatingY, controlY },
+    pointer: pointerOf(parts.find((p) => p.status === 'current')),
     ends: { left: back ? 'Back' : 'Front', right: back ? 'Front' : 'Back' },
     summary: summaryOf(plan, profile, status),
+  };
+}
+
+/**
+ * The triangle stays inside the gap to the next chamber (GAP), tip towards the part, and the word
+ * "now" stands over the chamber: beside the part it ran into the next chamber's stack.
+ */
+function pointerOf(p: DrawnPart | undefined): CoreDrawing['pointer'] {
+  if (!p) return null;
+  const x = p.x + p.w + POINTER.inset;
+  const y = p.y + (p.h + p.tip) / 2;
+  const half = POINTER.height / 2;
+  return {
+    points: `${x},${y} ${x + POINTER.width},${y - half} ${x + POINTER.width},${y + half}`,
+    box: { x, y: y - half, w: POINTER.width, h: POINTER.height },
+    word: { x: p.x + p.w / 2, y: TOP - 6 },
   };
 }
 
