@@ -15,3 +15,7 @@ export const CROSS_KEY = `Cross-keyed ${KEY_LEVEL_LABELS.change.toLowerCase()}`;
 export const naturalCompare = compareSymbols;
 /** A copy of `list` in natural order of `by(item)`. */
 export const naturally = <T>(list: readonly T[], by: (item: T) => string): T[] => [...list].sort((x, y) => naturalCompare(by(x), by(y)));
+
+/** The roles by name on every screen and in mail: never the stored value ("admin"). */
+export const ROLE_LABELS = { technician: 'Technician', supervisor: 'Supervisor', admin: 'Administrator' } as const satisfies Record<'technician' | 'supervisor' | 'admin', string>;
+export const roleOptions = (Object.keys(ROLE_LABELS) as (keyof typeof ROLE_LABELS)[]).map((value) => ({ label: ROLE_LABELS[value], value }));

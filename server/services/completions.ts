@@ -1,6 +1,7 @@
 /** The completion log: what synced from the bench, filtered, sorted and paged in SQL. */
 import type { Knex } from 'knex';
 import type { CompletionQuery } from '../../shared/schemas/completions';
+import type { KeyLevel } from '../../shared/schemas/records';
 import { notFound } from '../errors';
 import { whereDays } from './dates';
 import { openPinSizes } from './pinSizes';
@@ -116,8 +117,11 @@ export async function getCompletion(db: Knex, id: string) {
     .where('i.core_id', row.coreId)
     .orderBy([{ column: 'i.installed_at', order: 'desc' }, { column: 'i.received_at', order: 'desc' }])
     .first('i.id', 'i.door_id as doorId', 'd.label as doorLabel', 'i.installed_at as installedAt', 'u.name as installedBy', 'i.removed_core_tag as removedCoreTag', 'i.notes', 'i.door_mismatch as doorMismatch', 'i.mismatch_reason as mismatchReason', 'pd.label as plannedDoorLabel', 'i.reviewed_at as reviewedAt', 'r.name as reviewedBy');
+  // The level of each key of the core's system by symbol, so the detail names a master as the Bench does ("Grand master").
+  const levels = (await db('keys as k').join('cores as c', 'c.key_system_id', 'k.key_system_id').where('c.id', row.coreId).select('k.symbol', 'k.level')) as { symbol: string; level: KeyLevel }[];
   return {
     ...isoRow(row),
+    keyLevels: Object.fromEntries(levels.map((k) => [k.symbol, k.level])),
     install: install ? { ...install, installedAt: new Date(install.installedAt).toISOString(), reviewedAt: install.reviewedAt ? new Date(install.reviewedAt).toISOString() : null } : null,
   };
 }

@@ -2,6 +2,7 @@
 import type { Knex } from 'knex';
 import type { AuditInput, KeyLevel as EngineLevel, Profile } from '../../shared/keying';
 import type { KeyLevel } from '../../shared/schemas/records';
+import { compareSymbols } from '../../shared/keyLevels';
 import { loadSystem } from './keySystems';
 import type { Sealer } from './secrets';
 
@@ -17,7 +18,8 @@ export async function auditInputFor(db: Knex, sealer: Sealer, systemId: string):
     opens.set(l.key_id, [...(opens.get(l.key_id) ?? []), l.core_id]);
     operating.set(l.core_id, [...(operating.get(l.core_id) ?? []), l.key_id]);
   }
-  const active = system.keys.filter((k) => k.status !== 'retired');
+  // Keys and cores in natural order (AA2 before AA10): the findings list them in the order given.
+  const active = system.keys.filter((k) => k.status !== 'retired').sort((a, b) => compareSymbols(a.symbol, b.symbol));
   const top = active.find((k) => k.level === 'ggm') ?? active.find((k) => k.level === 'gm') ?? active.find((k) => k.level === 'master');
   return {
     profile: system.profile,
@@ -25,7 +27,7 @@ export async function auditInputFor(db: Knex, sealer: Sealer, systemId: string):
       control: system.control,
       ...(top ? { topMaster: top.id } : {}),
       keys: active.map((k) => ({ id: k.id, symbol: k.symbol, bitting: k.bitting, level: levelFor[k.level], opens: opens.get(k.id) ?? [] })),
-      cores: cores.map((c: { id: string; tag: string; label: string | null }) => ({ id: c.id, label: c.label ? `${c.tag} (${c.label})` : c.tag, operating: operating.get(c.id) ?? [] })),
+      cores: (cores as { id: string; tag: string; label: string | null }[]).sort((a, b) => compareSymbols(a.tag, b.tag)).map((c) => ({ id: c.id, label: c.label ? `${c.tag} (${c.label})` : c.tag, operating: operating.get(c.id) ?? [] })),
     },
   };
 }

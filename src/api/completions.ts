@@ -2,6 +2,7 @@
 import { z } from 'zod';
 import { CompletionPage, CompletionRow, type CompletionQuery } from '@shared/schemas/completions';
 import { Attempt } from '@shared/schemas/sync';
+import { KeyLevel } from '@shared/schemas/records';
 import { request } from './http';
 import { toQuery } from './doors';
 import { authorizedFetch, errorOf } from './http';
@@ -28,6 +29,8 @@ export const CompletionDetail = CompletionRow.extend({
   install: CompletionInstall.nullable(),
   /** The per-part sizes are sealed; they come back only on an audited reveal. */
   hasPinSizes: z.boolean(),
+  /** Each key symbol of the core's system with its level, to name a master by its level. */
+  keyLevels: z.record(z.string(), KeyLevel).default({}),
 });
 export type CompletionDetail = z.infer<typeof CompletionDetail>;
 

@@ -4,7 +4,7 @@
  */
 import type { KeyCheckItem, KeyCheckRole } from '@shared/schemas/packet';
 import type { KeyLevel } from '@shared/schemas/records';
-import { CONTROL_KEY_LABEL, KEY_LEVEL_LABELS } from '@shared/keyLevels';
+import { KEY_CHECK_ROLE_LABELS, KEY_LEVEL_LABELS, keyCheckRoleLabel } from '@shared/keyLevels';
 
 // Keys that must turn come first, lowest level up, so a fault shows on the simplest key;
 // the control key next; the key that must not turn last (keying-primer bench procedure).
@@ -17,17 +17,11 @@ export function keyCheckOrder(plan: readonly KeyCheckItem[]): KeyCheckItem[] {
   return [...plan].sort((a, b) => rank(a) - rank(b));
 }
 
-export const roleWords: Record<KeyCheckRole, string> = {
-  change: KEY_LEVEL_LABELS.change,
-  cross: `Cross-keyed ${KEY_LEVEL_LABELS.change.toLowerCase()}`,
-  master: KEY_LEVEL_LABELS.master,
-  control: CONTROL_KEY_LABEL,
-  'must-not-turn': 'Key that must not work',
-};
+export const roleWords: Record<KeyCheckRole, string> = KEY_CHECK_ROLE_LABELS;
 
 /** The level's one name (shared/keyLevels.ts) when the packet says it: "Grand master", "Master". */
 export function roleName(item: KeyCheckItem): string {
-  return item.role === 'master' && item.level ? KEY_LEVEL_LABELS[item.level] : roleWords[item.role];
+  return keyCheckRoleLabel(item.role, item.level);
 }
 
 /** Which key this is and why it must not turn, from the plan's `why`; null for a plan without one. */
