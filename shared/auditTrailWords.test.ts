@@ -15,6 +15,11 @@ describe('detailLine', () => {
     expect(line2).toBe(line);
     expect(line2).not.toMatch(/[{}"]/);
   });
+  test('a role or a key level reads by its name, not its stored value (common practice)', () => {
+    expect(detailLine('user.invited', { role: 'admin' })).toBe('role: Administrator');
+    expect(detailLine('user.updated', { role: 'supervisor', active: false })).toBe('role: Supervisor · active: no');
+    expect(detailLine('key.updated', { level: 'gm' })).toBe('level: Grand master');
+  });
   test('an action reads as words, listed or not (common practice)', () => {
     expect(actionName('door.retired')).toBe('Retired a door');
     expect(actionName('widget.frobbed')).toBe('Widget frobbed');

@@ -2,6 +2,8 @@
  * The audit log in people's words: each action's name, and a line for its details. Used by the
  * server for the list and the CSV export, and by the screen's action filter. Never raw JSON.
  */
+import { KEY_LEVEL_LABELS } from './keyLevels';
+import { ROLE_LABELS } from './words';
 export const actionWords: Record<string, string> = {
   'auth.sign-in': 'Signed in',
   'auth.sign-in.failed': 'Sign-in failed',
@@ -73,6 +75,9 @@ export const actionGroups = [
 const whatWords: Record<string, string> = { control: 'the control key', keys: 'the key bittings', charts: 'the pinning charts', 'progression-preview': 'a progression preview' };
 const fieldWords: Record<string, string> = { deviceId: 'tablet', dueDate: 'due date', assigneeId: 'assignee', fireRated: 'fire rating', keySystemId: 'key system', keyId: 'key', parentId: 'master', crossKeyId: 'cross-keyed key' };
 
+/** Stored values shown by name: a role or a key level, never "admin" or "gm". */
+const valueWords: Record<string, Readonly<Record<string, string>>> = { role: ROLE_LABELS, level: KEY_LEVEL_LABELS };
+
 type Value = unknown;
 /** Names for ids found in details (users, mostly), filled in by the server. */
 export type NameOf = (id: string) => string | undefined;
@@ -90,7 +95,7 @@ function words(key: string, v: Value, nameOf: NameOf): string | null {
   const s = String(v);
   // A record's id is never shown bare: its name, or that it is gone.
   if (/^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i.test(s)) return `${key}: ${nameOf(s) ?? '(no longer on record)'}`;
-  return `${key}: ${nameOf(s) ?? s}`;
+  return `${key}: ${valueWords[key]?.[s] ?? nameOf(s) ?? s}`;
 }
 
 /** One readable line for an event's details. */
