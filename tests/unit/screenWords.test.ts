@@ -90,12 +90,15 @@ describe('one name per key level', () => {
 const textSorts = (source: string) =>
   uncommented(source)
     .split('\n')
-    .filter((l) => (/\.sort\(\)/.test(l) || /localeCompare/.test(l)) && /symbol|tag|label|building|door/i.test(l))
+    .filter((l) => ((/\.sort\(\)/.test(l) || /localeCompare/.test(l)) && /symbol|tag|label|building|door/i.test(l)) || (/keys(\.value)?\.filter\(.*\.map\(\(k\) => \(\{ label/.test(l) && !/naturally\(/.test(l)))
     .map((l) => l.trim());
 
 describe('symbols sort naturally', () => {
   it('the scanner flags a plain-text sort of symbols or labels', () => {
     expect(textSorts(`const b = [...new Set(doors.map((d) => d.building))].sort();\nkeys.sort((a, b) => a.symbol.localeCompare(b.symbol));\nlist.sort(naturalCompare);`)).toHaveLength(2);
+    // a select's key options in the order the API happened to send them
+    expect(textSorts('const o = computed(() => keys.value.filter((k) => k.level === x).map((k) => ({ label: k.symbol, value: k.id })));')).toHaveLength(1);
+    expect(textSorts('const o = computed(() => naturally(keys.value.filter((k) => k.level === x), (k) => k.symbol).map((k) => ({ label: k.symbol, value: k.id })));')).toEqual([]);
   });
 
   it.each(screens)('%s sorts symbols, tags and labels with compareSymbols (AA2 before AA10)', (file) => {
