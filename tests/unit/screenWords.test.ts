@@ -17,7 +17,7 @@ function filesUnder(dir: string, ext: RegExp): string[] {
 }
 
 const screens = [...filesUnder('src', /\.vue$/), ...filesUnder('src', /\.ts$/)].filter((f) => !f.includes('/testing/'));
-const wordsFiles = ['shared/words.ts', ...filesUnder('shared', /^auditWords.*\.ts$/), 'server/services/mail.ts'];
+const wordsFiles = ['shared/words.ts', ...filesUnder('shared', /^audit\w*Words\.ts$/), 'server/services/mail.ts'];
 
 /** Code without its comments: a comment may name the internals it explains. */
 const uncommented = (s: string) => s.replace(/<!--[\s\S]*?-->/g, '').replace(/\/\*[\s\S]*?\*\//g, '').replace(/(^|[^:'"`])\/\/.*$/gm, '$1');
