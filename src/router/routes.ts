@@ -36,7 +36,9 @@ const consoleRoutes: RouteRecordRaw[] = [
   { path: 'doors', name: 'doors.list', component: () => import('@/pages/DoorsPage.vue'), meta: { roles: office, title: 'Doors' } },
   { path: 'doors/:id/history', name: 'doors.history', component: () => import('@/pages/DoorHistoryPage.vue'), meta: { roles: office, title: 'Door history' } },
   { path: 'users', name: 'users.list', component: () => import('@/pages/UsersPage.vue'), meta: { roles: admin, title: 'Users' } },
-  { path: 'audit', name: 'audit.list', component: () => import('@/pages/AuditLogPage.vue'), meta: { roles: admin, title: 'Audit log' } },
+  { path: 'audit-trail', name: 'auditTrail.list', component: () => import('@/pages/AuditTrailPage.vue'), meta: { roles: admin, title: 'Audit trail' } },
+  // The old address keeps working (bookmarks, links in mail), filters included.
+  { path: 'audit', redirect: (to) => ({ name: 'auditTrail.list', query: to.query }) },
 ];
 
 export const routes: RouteRecordRaw[] = [
@@ -70,5 +72,5 @@ export const navigation = [
   { name: 'profiles.list', label: 'Profiles', icon: 'tune' },
   { name: 'doors.list', label: 'Doors', icon: 'sensor_door' },
   { name: 'users.list', label: 'Users', icon: 'group' },
-  { name: 'audit.list', label: 'Audit log', icon: 'policy' },
+  { name: 'auditTrail.list', label: 'Audit trail', icon: 'policy' },
 ] as const;

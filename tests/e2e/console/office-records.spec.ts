@@ -39,7 +39,7 @@ test('an administrator opens a key, reads the audit log by person and action, an
   await expect(page.getByTestId('key-panel-bitting')).toHaveText(/^\d{7}$/);
   await page.getByTestId('key-panel-close').click();
 
-  await page.goto('/audit');
+  await page.goto('/audit-trail');
   await expect(page.getByTestId('audit-table').locator('tbody tr').first()).toBeVisible();
   await page.getByTestId('audit-action').click();
   await page.getByRole('option', { name: 'Bittings seen' }).click();
@@ -54,7 +54,7 @@ test('an administrator opens a key, reads the audit log by person and action, an
   const download = page.waitForEvent('download');
   await page.getByTestId('audit-export').click();
   expect((await download).suggestedFilename()).toMatch(/^audit-log-.*\.csv$/);
-  await page.goto('/audit?action=audit.exported');
+  await page.goto('/audit-trail?action=audit.exported');
   await expect(page.getByTestId('audit-table')).toContainText('Exported the audit log');
 });
 

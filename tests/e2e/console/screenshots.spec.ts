@@ -120,7 +120,7 @@ test('screenshots of each console page', async ({ page }) => {
   await expect(page.getByTestId('users-table').locator('tbody tr').first()).toBeVisible();
   await shot(page, 'users');
 
-  await page.goto('/audit');
+  await page.goto('/audit-trail');
   await expect(page.getByTestId('audit-table').locator('tbody tr').first()).toBeVisible();
   await shot(page, 'audit');
 

@@ -7,7 +7,7 @@ import { freshDemo } from '../support/freshDemo';
 
 test.beforeAll(freshDemo);
 
-const pages = ['/overview', '/work-orders', '/work-orders/new', '/completions?result=failed', '/key-systems', '/profiles', '/doors', '/users', '/audit'];
+const pages = ['/overview', '/work-orders', '/work-orders/new', '/completions?result=failed', '/key-systems', '/profiles', '/doors', '/users', '/audit-trail'];
 
 test('a technician cannot open any console page and the API answers 403', async ({ page }) => {
   const tech = await apiSignIn(page.request, demo.technician);

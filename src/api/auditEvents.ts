@@ -1,4 +1,4 @@
-/** The audit trail (admin): names and words from the server; the CSV export is audited there. */
+/** The audit trail (admin): its audit events in names and words from the server; the CSV export is audited there. */
 import { AuditPage } from '@shared/schemas/auditEvents';
 import { authorizedFetch, errorOf, request } from './http';
 import { toQuery } from './doors';
