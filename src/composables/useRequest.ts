@@ -7,7 +7,7 @@
  * has overtaken also resolves `undefined`, so a slow old answer never replaces a newer list.
  */
 import { computed, ref } from 'vue';
-import { fieldErrors, messageOf } from '@/helpers/errors';
+import { fieldErrors, fieldProps, messageOf } from '@/helpers/errors';
 
 export interface RequestOptions {
   /** Only the newest run's answer counts (lists reloaded as filters change). */
@@ -61,5 +61,8 @@ export function useRequest(options: RequestOptions = {}) {
     return last ? run(last) : Promise.resolve(undefined);
   }
 
-  return { busy: computed(() => running.value > 0), error, fields, run, retry, clear };
+  /** A form field's error props: `v-bind="field('title')"`. */
+  const field = (name: string) => fieldProps(fields.value, name);
+
+  return { busy: computed(() => running.value > 0), error, fields, field, run, retry, clear };
 }

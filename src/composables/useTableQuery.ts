@@ -4,17 +4,18 @@
  */
 import { computed } from 'vue';
 import { useRoute, useRouter } from 'vue-router';
-import { readFilter, readPaging, tableQuery, type Paging, type TableDefaults } from '@/helpers/tableQuery';
+import { readFilter, readPaging, tableQuery, type Paging, type TableSpec } from '@/helpers/tableQuery';
 
-export function useTableQuery<K extends string>(keys: readonly K[], defaults: TableDefaults) {
+export function useTableQuery<K extends string>(spec: TableSpec<K>) {
+  const keys = spec.filterKeys;
   const route = useRoute();
   const router = useRouter();
   const filter = computed(() => readFilter(route.query, keys));
-  const paging = computed(() => readPaging(route.query, defaults));
+  const paging = computed(() => readPaging(route.query, spec));
   const active = computed(() => Object.keys(filter.value).length > 0);
 
   // A new entry per change (not replace): Back returns to the filters or page seen before.
-  const go = (filters: Partial<Record<K, string | null | undefined>>, p: Partial<Paging>) => router.push({ query: tableQuery(keys, filters, p, defaults) });
+  const go = (filters: Partial<Record<K, string | null | undefined>>, p: Partial<Paging>) => router.push({ query: tableQuery(keys, filters, p, spec) });
 
   /** New filters keep the sort and page size and go back to page 1. */
   const setFilter = (next: Partial<Record<K, string | null | undefined>>) => go(next, { ...paging.value, page: 1 });

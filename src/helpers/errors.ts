@@ -6,6 +6,11 @@ export function messageOf(err: unknown): string {
   return 'Something went wrong unexpectedly; try again.';
 }
 
+/** A form field's error props (`v-bind="fieldProps(fields, 'title')"`): red with the server's message beside it. */
+export function fieldProps(fields: Record<string, string>, name: string): { error: boolean; errorMessage: string | undefined } {
+  return { error: name in fields, errorMessage: fields[name] };
+}
+
 /** field → message from ApiError.details, so each message shows beside its field. */
 export function fieldErrors(err: unknown): Record<string, string> {
   const out: Record<string, string> = {};

@@ -7,10 +7,17 @@ import type { LocationQuery, LocationQueryRaw } from 'vue-router';
 
 export interface TableDefaults {
   pageSize: number;
+  /** The page sizes offered. */
+  pageSizes?: number[];
   /** Absent: the table has no sorting of its own (the server's order). */
   sort?: string;
   /** Sort columns the server accepts; anything else in the URL falls back to `sort`. */
   sorts?: readonly string[];
+}
+
+/** A table's whole query: which parameters are filters, and its paging defaults. */
+export interface TableSpec<K extends string> extends TableDefaults {
+  filterKeys: readonly K[];
 }
 
 export interface Paging {
