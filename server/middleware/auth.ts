@@ -8,6 +8,7 @@ import type { Config } from '../config';
 import type { Role } from '../../shared/schemas/auth';
 import { forbidden, HttpError, unauthenticated } from '../errors';
 import { DEVICE_REVOKED_MESSAGE } from '../services/devices';
+import { sessionOf } from '../services/sessions';
 import { verifyAccessToken } from '../services/tokens';
 import type { Actor } from '../services/auditTrail';
 
@@ -38,11 +39,7 @@ export function requireAuth(db: Knex, config: Config): RequestHandler {
     } catch {
       throw unauthenticated('Your sign-in has expired or is not valid; sign in again.');
     }
-    const row = await db('sessions as s')
-      .join('users as u', 'u.id', 's.user_id')
-      .leftJoin('devices as d', 'd.id', 's.device_id')
-      .where({ 's.id': claims.sid, 'u.id': claims.sub })
-      .first('s.revoked_at', 's.revoked_reason', 's.expires_at', 's.device_id', 'd.revoked_at as device_revoked_at', 'u.active', 'u.email', 'u.name', 'u.role');
+    const row = await sessionOf(db, claims.sid, claims.sub);
     // A tablet revoked by an administrator is told so, so it wipes its packets.
     if (row?.revoked_reason === 'device-revoked' || row?.device_revoked_at) throw new HttpError('device-revoked', DEVICE_REVOKED_MESSAGE);
     if (!row || row.revoked_at || !row.active || new Date(row.expires_at) < new Date()) {

@@ -3,14 +3,14 @@ import { ipKeyGenerator } from 'express-rate-limit';
 import type { Knex } from 'knex';
 import type { Config } from '../config';
 import { Email, RefreshRequest, SetPasswordRequest, SignInRequest } from '../../shared/schemas/auth';
-import { acceptInvitation } from '../services/users';
+import { acceptInvitation, userForSignIn } from '../services/users';
 import { HttpError, unauthenticated } from '../errors';
 import { parse } from '../middleware/validate';
 import { actorOf, requireAuth } from '../middleware/auth';
 import { audit, auditQuietly } from '../services/auditTrail';
 import { sharedFailureLimiter } from '../services/failureLimiter';
 import { verifyPassword } from '../services/passwords';
-import { DEVICE_REVOKED_MESSAGE } from '../services/devices';
+import { DEVICE_REVOKED_MESSAGE, isRevoked } from '../services/devices';
 import { createSession, refreshSession, revokeSession } from '../services/sessions';
 
 const SAME_MESSAGE = 'That e-mail and password do not match an active account.';
@@ -50,14 +50,14 @@ export function authRouter(db: Knex, config: Config): Router {
   router.post('/auth/sign-in', (req, res) =>
     limited(`sign-in|${ipKey(req)}|${rawEmail(req)}`, req, res, 'auth.sign-in.locked', async () => {
       const input = parse(SignInRequest, req.body, 'The sign-in');
-      const user = await db('users').where({ email: input.email }).first('id', 'email', 'name', 'role', 'password_hash', 'active');
+      const user = await userForSignIn(db, input.email);
       const ok = await verifyPassword(input.password, user?.password_hash);
       if (!user || !ok || !user.active) {
         await audit(db, { id: user?.id ?? null, email: input.email, ...client(req) }, 'auth.sign-in.failed');
         throw unauthenticated(SAME_MESSAGE);
       }
       // A revoked tablet stays revoked: signing in again with its device id is refused (T7).
-      if (input.deviceId && (await db('devices').where({ id: input.deviceId }).whereNotNull('revoked_at').first('id'))) {
+      if (input.deviceId && (await isRevoked(db, input.deviceId))) {
         await audit(db, { id: user.id, email: user.email, ...client(req) }, 'auth.sign-in.device-revoked', { type: 'device', id: input.deviceId });
         throw new HttpError('device-revoked', DEVICE_REVOKED_MESSAGE);
       }

@@ -1,8 +1,8 @@
 import { Router } from 'express';
 import { z } from 'zod';
-import { auditSystem, progressKeys, KeyingError, type AuditFinding } from '../../shared/keying';
+import { auditSystem } from '../../shared/keying';
 import { Id, Notes } from '../../shared/schemas/common';
-import { KeyInput, KeyReplace, KeySystemCreate, KeySystemUpdate, KeyUpdate, ProgressionInput, type HeldKey } from '../../shared/schemas/records';
+import { KeyInput, KeyReplace, KeySystemCreate, KeySystemUpdate, KeyUpdate, ProgressionInput } from '../../shared/schemas/records';
 import type { Ctx } from '../context';
 import { badRequest } from '../errors';
 import { actorOf, allow } from '../middleware/auth';
@@ -12,7 +12,8 @@ import { audit } from '../services/auditTrail';
 import { acknowledge, withAcknowledgements } from '../services/auditAcknowledgements';
 import { importKeys } from '../services/csvImport';
 import { coresOperatedBy } from '../services/keyDoors';
-import { addKeys, replaceKey, createSystem, getSystem, listKeys, listSystems, loadSystem, placementSystemOf, updateKey, updateSystem } from '../services/keySystems';
+import { addKeys, replaceKey, createSystem, getSystem, listKeys, listSystems, loadSystem, updateKey, updateSystem } from '../services/keySystems';
+import { previewProgression } from '../services/progression';
 import { auditInputFor } from '../services/systemAudit';
 
 const IdParam = z.object({ id: Id });
@@ -92,12 +93,6 @@ export function keySystemsRouter({ db, sealer, config }: Ctx): Router {
     res.json({ ok: true });
   });
 
-  /**
-   * A preview of change keys under a master, by total position progression or rotating
-   * constant; nothing is saved. Every key passes the engine's hierarchy rules, and the
-   * system audit runs on the keys proposed: one that would raise an audit error (for
-   * example, it would turn cores it is not meant to) is held back and listed with why.
-   */
   /** The cores and doors a key turns (engine keyOperates), each intended or incidental; no bitting in the answer. */
   r.get('/key-systems/:id/keys/:keyId/operates', allow('supervisor', 'admin'), async (req, res) => {
     const { id } = parse(IdParam, req.params);
@@ -116,52 +111,13 @@ export function keySystemsRouter({ db, sealer, config }: Ctx): Router {
     res.status(201).json(out);
   });
 
+  /** A preview only: nothing is saved. It lists bittings, so the read is audited. */
   r.post('/key-systems/:id/progression', allow('admin'), async (req, res) => {
     const { id } = parse(IdParam, req.params);
     const input = parse(ProgressionInput, req.body, 'The progression');
-    const system = await loadSystem(db, sealer, id);
-    const parent = system.keys.find((k) => k.id === input.parentId);
-    if (!parent) throw badRequest('The master to progress from is not in this key system.', [{ field: 'parentId', message: 'unknown key' }]);
-    if (parent.level === 'change') throw badRequest('A change key has no keys under it; choose a master to progress from.', [{ field: 'parentId', message: 'choose a master key' }]);
-    let bittings: string[];
-    try {
-      // Twice the limit, so keys the audit holds back can be replaced.
-      bittings = progressKeys(system.profile, {
-        topMaster: parent.bitting, progress: input.progress, method: input.method, constants: input.constants,
-        limit: Math.min(2 * input.limit, 10_000), placement: { system: placementSystemOf(system), parentId: parent.id },
-      });
-    } catch (err) {
-      if (err instanceof KeyingError) throw badRequest(err.message, [{ field: err.code === 'progress-constants' ? 'constants' : 'progress', message: err.message }]);
-      throw err;
-    }
-    const { profile, audit: current } = await auditInputFor(db, sealer, id);
-    const fresh = bittings.map((bitting, i) => ({ id: `proposed:${i}`, symbol: `(new ${i + 1})`, bitting, level: 'change' as const, opens: [] as string[] }));
-    const reasons = new Map<number, AuditFinding[]>();
-    for (const f of auditSystem(profile, { ...current, keys: [...current.keys, ...fresh] })) {
-      if (f.severity !== 'error') continue;
-      for (const keyId of f.keyIds ?? []) {
-        if (!keyId.startsWith('proposed:')) continue;
-        const i = Number(keyId.slice(9));
-        reasons.set(i, [...(reasons.get(i) ?? []), f]);
-      }
-    }
-    const held: HeldKey[] = [];
-    const clean: string[] = [];
-    bittings.forEach((bitting, i) => {
-      const found = reasons.get(i);
-      if (!found) clean.push(bitting);
-      else if (held.length < input.limit) held.push({ bitting, reasons: found.map((f) => ({ code: f.code, message: f.message.replaceAll(`Key (new ${i + 1})`, 'This key').replaceAll(`(new ${i + 1})`, 'this key') })) });
-    });
-    const prefix = (input.symbolPrefix ?? parent.symbol).toUpperCase();
-    const used = new Set(system.keys.map((k) => k.symbol));
-    let n = 1;
-    const keys = clean.slice(0, input.limit).map((bitting) => {
-      while (used.has(`${prefix}${n}`)) n++;
-      const symbol = `${prefix}${n++}`;
-      return { symbol, level: 'change' as const, parentId: parent.id, bitting };
-    });
-    await audit(db, actorOf(req), 'bittings.viewed', { type: 'key-system', id }, { what: 'progression-preview', count: keys.length + held.length });
-    res.json({ keys, held });
+    const preview = await previewProgression(db, sealer, id, input);
+    await audit(db, actorOf(req), 'bittings.viewed', { type: 'key-system', id }, { what: 'progression-preview', count: preview.keys.length + preview.held.length });
+    res.json(preview);
   });
 
   r.post('/key-systems/:id/import', allow('admin'), upload.single('file'), async (req, res) => {

@@ -4,7 +4,7 @@ import type { Ctx } from '../context';
 import { actorOf, allow } from '../middleware/auth';
 import { parse } from '../middleware/validate';
 import { audit, auditQuietly } from '../services/auditTrail';
-import { touchDevice } from '../services/devices';
+import { recordSyncQuietly, touchDevice } from '../services/devices';
 import { landBatch } from '../services/sync';
 import { sendPending } from '../services/notifier';
 
@@ -31,11 +31,7 @@ export function syncRouter(ctx: Ctx): Router {
     const left = input.outbox ? Math.max(0, input.outbox.waiting - response.accepted.length - response.duplicates.length) : response.rejected.length;
     // The records are committed by now: what follows must never turn that into a 500 (T10),
     // and the tablet's replay would only get duplicates. Logged if it fails, never thrown.
-    try {
-      await db('devices').where({ id: input.deviceId }).update({ last_sync_at: db.fn.now(), last_sync_waiting: left });
-    } catch (err) {
-      console.error('[sync] could not record the device\'s last sync:', (err as Error).message);
-    }
+    await recordSyncQuietly(db, input.deviceId, left);
     if (response.accepted.length || response.rejected.length) {
       await auditQuietly(db, actorOf(req), 'sync.batch', { type: 'device', id: input.deviceId }, { accepted: response.accepted.length, duplicates: response.duplicates.length, rejected: response.rejected.length });
     }

@@ -3,13 +3,15 @@ import { z } from 'zod';
 import { Id } from '../../shared/schemas/common';
 import { WorkOrderDoorsAdd, WorkOrderInput, WorkOrderUpdate } from '../../shared/schemas/records';
 import type { Ctx } from '../context';
-import { badRequest, forbidden } from '../errors';
+import { forbidden } from '../errors';
 import { actorOf, allow } from '../middleware/auth';
 import { parse } from '../middleware/validate';
 import { audit } from '../services/auditTrail';
 import { mails } from '../services/mail';
-import { addDoors, buildPacket, createWorkOrder, getWorkOrder, iso, pinningFor, removeCore, updateWorkOrder, workOrderQuery } from '../services/workOrders';
-import { chainOf, loadSystem } from '../services/keySystems';
+import { previewPinning } from '../services/pinningPreview';
+import { emailOf } from '../services/users';
+import { listWorkOrders, workOrderCores } from '../services/workOrderLists';
+import { addDoors, buildPacket, createWorkOrder, getWorkOrder, removeCore, updateWorkOrder } from '../services/workOrders';
 
 const ListQuery = z.strictObject({
   mine: z.enum(['0', '1']).optional(),
@@ -20,7 +22,7 @@ export function workOrdersRouter({ db, sealer, mailer, config }: Ctx): Router {
   const r = Router();
 
   async function notifyAssignee(wo: Awaited<ReturnType<typeof getWorkOrder>>, userId: string): Promise<void> {
-    const user = await db('users').where({ id: userId }).first('email');
+    const user = await emailOf(db, userId);
     if (user) await mailer.send({ to: user.email, ...mails.workOrderAssigned({ number: wo.number, title: wo.title, cores: wo.coreCount, due: wo.dueDate, link: `${config.publicUrl}/bench` }) });
   }
 
@@ -29,11 +31,7 @@ export function workOrdersRouter({ db, sealer, mailer, config }: Ctx): Router {
     const user = req.user!;
     // A technician only ever sees their own work orders.
     const mine = q.mine === '1' || user.role === 'technician';
-    const query = workOrderQuery(db).orderBy([{ column: 'w.due_date', order: 'asc', nulls: 'last' }, { column: 'w.number', order: 'desc' }]);
-    if (mine) query.where('w.assignee_id', user.id).whereNotIn('w.status', ['draft', 'cancelled']);
-    if (q.status === 'open') query.whereNotIn('w.status', ['done', 'cancelled']);
-    else if (q.status) query.where('w.status', q.status);
-    res.json({ workOrders: (await query).map(iso) });
+    res.json({ workOrders: await listWorkOrders(db, { assigneeId: mine ? user.id : undefined, status: q.status }) });
   });
 
   r.post('/work-orders', allow('supervisor', 'admin'), async (req, res) => {
@@ -61,26 +59,7 @@ export function workOrdersRouter({ db, sealer, mailer, config }: Ctx): Router {
       await audit(db, actorOf(req), 'access.denied', { type: 'work-order', id });
       throw forbidden('This work order is not assigned to you.');
     }
-    const cores = await db('work_order_cores as x')
-      .join('cores as c', 'c.id', 'x.core_id')
-      .leftJoin('doors as d', 'd.id', 'c.door_id')
-      .where('x.work_order_id', id)
-      .orderBy('x.position')
-      .leftJoin('doors as pd', 'pd.id', 'c.planned_door_id')
-      // doorId/doorLabel: where the core IS; plannedDoorLabel: where it was planned; doorMismatch: an install elsewhere not yet reviewed (T4).
-      .select(
-        'c.id',
-        'c.tag',
-        'c.state',
-        'd.id as doorId',
-        'd.label as doorLabel',
-        'd.fire_rated as fireRated',
-        'pd.label as plannedDoorLabel',
-        db.raw(`exists(select 1 from installs i where i.core_id = c.id and i.door_mismatch and i.reviewed_at is null) as "doorMismatch"`),
-        // The key symbol stamped on the core: its change key (the lowest level not cross-keyed), and a cross-keyed one.
-        db.raw(`(select k.symbol from core_keys ck join keys k on k.id = ck.key_id where ck.core_id = c.id and not ck.cross_keyed order by array_position(array['change','master','gm','ggm']::text[], k.level::text) limit 1) as "keySymbol"`),
-        db.raw(`(select k.symbol from core_keys ck join keys k on k.id = ck.key_id where ck.core_id = c.id and ck.cross_keyed limit 1) as "crossKeySymbol"`),
-      );
+    const cores = await workOrderCores(db, id);
     res.json({ workOrder: wo, cores });
   });
 
@@ -148,16 +127,7 @@ export function workOrdersRouter({ db, sealer, mailer, config }: Ctx): Router {
   /** Pinning preview for a door and key before a work order is saved. */
   r.post('/pinning-preview', allow('supervisor', 'admin'), async (req, res) => {
     const input = parse(z.strictObject({ keySystemId: Id, keyId: Id, crossKeyId: Id.nullable().optional() }), req.body, 'The preview');
-    const system = await loadSystem(db, sealer, input.keySystemId);
-    const chain = chainOf(system.keys, input.keyId);
-    if (!chain.length) throw badRequest('That key is not in this key system.', [{ field: 'keyId', message: 'not in this key system' }]);
-    if (input.crossKeyId) {
-      const cross = system.keys.find((k) => k.id === input.crossKeyId);
-      if (!cross) throw badRequest('The cross-keyed key is not in this key system.', [{ field: 'crossKeyId', message: 'not in this key system' }]);
-      if (!chain.some((k) => k.id === cross.id)) chain.push({ ...cross, crossKeyed: true });
-    }
-    const pinning = pinningFor(system, chain);
-    res.json({ issues: pinning.issues, openingsCount: pinning.openingsCount, controlOpeningsCount: pinning.controlOpeningsCount, chain: chain.map((k) => k.symbol) });
+    res.json(await previewPinning(db, sealer, input));
   });
   return r;
 }

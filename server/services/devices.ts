@@ -37,3 +37,17 @@ export async function revokeDevice(db: Knex, deviceId: string, by: string): Prom
   if (!n && !(await db('devices').where({ id: deviceId }).first('id'))) throw new HttpError('not-found', 'That device was not found.');
   await db('sessions').where({ device_id: deviceId }).whereNull('revoked_at').update({ revoked_at: db.fn.now(), revoked_reason: 'device-revoked' });
 }
+
+/** When the tablet last synced and what it still holds; logged on failure, never thrown (the batch has committed: T10). */
+export async function recordSyncQuietly(db: Knex, deviceId: string, waiting: number): Promise<void> {
+  try {
+    await db('devices').where({ id: deviceId }).update({ last_sync_at: db.fn.now(), last_sync_waiting: waiting });
+  } catch (err) {
+    console.error('[sync] could not record the device\'s last sync:', (err as Error).message);
+  }
+}
+
+/** True when an administrator revoked this device. */
+export async function isRevoked(db: Knex, deviceId: string): Promise<boolean> {
+  return !!(await db('devices').where({ id: deviceId }).whereNotNull('revoked_at').first('id'));
+}

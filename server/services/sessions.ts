@@ -116,6 +116,27 @@ export async function refreshSession(db: Knex, config: Config, refreshToken: str
   });
 }
 
+/** A session with its user and device as every request checks them (middleware/auth.ts); undefined when there is none. */
+export async function sessionOf(db: Knex, sessionId: string, userId: string): Promise<SessionCheck | undefined> {
+  return db('sessions as s')
+    .join('users as u', 'u.id', 's.user_id')
+    .leftJoin('devices as d', 'd.id', 's.device_id')
+    .where({ 's.id': sessionId, 'u.id': userId })
+    .first('s.revoked_at', 's.revoked_reason', 's.expires_at', 's.device_id', 'd.revoked_at as device_revoked_at', 'u.active', 'u.email', 'u.name', 'u.role');
+}
+
+export interface SessionCheck {
+  revoked_at: Date | null;
+  revoked_reason: string | null;
+  expires_at: Date;
+  device_id: string | null;
+  device_revoked_at: Date | null;
+  active: boolean;
+  email: string;
+  name: string;
+  role: Role;
+}
+
 export async function revokeSession(db: Knex, sessionId: string, reason: string): Promise<void> {
   await db('sessions').where({ id: sessionId }).whereNull('revoked_at').update({ revoked_at: db.fn.now(), revoked_reason: reason });
 }

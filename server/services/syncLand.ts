@@ -11,7 +11,8 @@ import { sealPinSizes } from './pinSizes';
 import type { Sealer } from './secrets';
 import type { CoreRef, SyncUser } from './syncAuthorise';
 import type { CorePlan } from './syncPlans';
-import type { Item } from './syncValidate';
+import { answerLost } from './syncStored';
+import type { BatchAnswer, Item } from './syncValidate';
 
 export type SyncEvent = { kind: 'key-check-failed'; completionId: string } | { kind: 'work-order-done'; workOrderId: string };
 
@@ -142,4 +143,31 @@ export async function landChecked(trx: Knex.Transaction, sealer: Sealer, input: 
   // The mail this work owes is stored with it (services/notifier.ts sends it).
   if (out.events.length) await trx('notifications').insert(out.events.map((e) => ({ kind: e.kind, ref_id: e.kind === 'work-order-done' ? e.workOrderId : e.completionId }))).onConflict(['kind', 'ref_id']).ignore();
   return out;
+}
+
+/** Postgres may still pick a deadlock victim (for example against an admin's edit): retry the batch a few times. */
+async function withDeadlockRetry<T>(run: () => Promise<T>, tries = 4): Promise<T> {
+  for (let attempt = 1; ; attempt++) {
+    try {
+      return await run();
+    } catch (err) {
+      const code = (err as { code?: string }).code;
+      if (attempt >= tries || (code !== '40P01' && code !== '40001')) throw err;
+      await new Promise((r) => setTimeout(r, 20 * attempt + Math.random() * 30));
+    }
+  }
+}
+
+/**
+ * Lands the checked records in ONE transaction (a batch cut off half-way commits nothing, and its
+ * replay lands each record exactly once) and answers each: accepted, refused by the install rules,
+ * or answered from what a parallel request stored first. Returns the mail the work owes.
+ */
+export async function land(db: Knex, sealer: Sealer, input: LandInput, answer: BatchAnswer): Promise<SyncEvent[]> {
+  const landed = await withDeadlockRetry(() => db.transaction((trx) => landChecked(trx, sealer, input)));
+  for (const r of landed.refused) answer.reject(r.index, r.clientId, r.code, r.message, r.field ? [{ field: r.field, message: r.message }] : undefined);
+  const all = [...input.completions, ...input.installs];
+  await answerLost(db, all.filter((i) => !landed.accepted.has(i.record.clientId) && !answer.isRejected(i.record.clientId)), answer);
+  answer.response.accepted = all.filter((i) => landed.accepted.has(i.record.clientId)).map((i) => i.record.clientId);
+  return landed.events;
 }

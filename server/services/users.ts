@@ -1,7 +1,7 @@
 /** Accounts: invitations by e-mail with a one-time set-password link, role changes, deactivation. */
 import { randomBytes } from 'node:crypto';
 import type { Knex } from 'knex';
-import type { InviteRequest, UserUpdate } from '../../shared/schemas/auth';
+import type { InviteRequest, Role, UserUpdate } from '../../shared/schemas/auth';
 import { badRequest, conflict, HttpError, notFound } from '../errors';
 import { hashPassword } from './passwords';
 import { revokeUserSessions } from './sessions';
@@ -15,6 +15,16 @@ export async function listUsers(db: Knex, id?: string) {
   return q
     .orderBy('u.email')
     .select('u.id', 'u.email', 'u.name', 'u.role', 'u.active', 'u.created_at as createdAt', db.raw('(u.password_hash is not null) as "hasPassword"'));
+}
+
+/** What sign-in checks: the password hash and whether the account is active. */
+export async function userForSignIn(db: Knex, email: string): Promise<{ id: string; email: string; name: string; role: Role; password_hash: string | null; active: boolean } | undefined> {
+  return db('users').where({ email }).first('id', 'email', 'name', 'role', 'password_hash', 'active');
+}
+
+/** A user's e-mail address, for mail about their work; undefined when there is no such user. */
+export async function emailOf(db: Knex, id: string): Promise<{ email: string } | undefined> {
+  return db('users').where({ id }).first('email');
 }
 
 /** Active technicians and supervisors, for assigning work orders. */
