@@ -20,12 +20,4 @@ export const errorCodes = {
 
 export type ErrorCode = keyof typeof errorCodes;
 
-export interface ErrorDetail {
-  /** Dotted path of the field, e.g. `records.3.clientId`; absent for the whole body. */
-  field?: string;
-  message: string;
-}
-
-export interface ApiErrorBody {
-  error: { code: ErrorCode; message: string; details?: ErrorDetail[] };
-}
+export type { ApiErrorBody, ErrorDetail } from './schemas/errors';

@@ -5,15 +5,9 @@
  */
 import { simpleParser } from 'mailparser';
 import { SMTPServer } from 'smtp-server';
+import type { CapturedMail } from '../../shared/schemas/devMailbox';
 
-export interface CapturedMail {
-  id: number;
-  to: string[];
-  from: string;
-  subject: string;
-  text: string;
-  receivedAt: string;
-}
+export type { CapturedMail };
 
 export interface FakeSmtp {
   port: number;

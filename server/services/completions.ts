@@ -1,6 +1,6 @@
 /** The completion log: what synced from the bench, filtered, sorted and paged in SQL. */
 import type { Knex } from 'knex';
-import type { CompletionQuery } from '../../shared/schemas/completions';
+import type { CompletionPage, CompletionQuery } from '../../shared/schemas/completions';
 import type { KeyLevel } from '../../shared/schemas/records';
 import { notFound } from '../errors';
 import { whereDays } from './dates';
@@ -83,7 +83,7 @@ const isoRow = (r: Record<string, unknown>) => ({
   doorMismatch: r.installId ? Boolean(r.doorMismatch) : null,
 });
 
-export async function listCompletions(db: Knex, q: CompletionQuery) {
+export async function listCompletions(db: Knex, q: CompletionQuery): Promise<CompletionPage> {
   const { total } = ((await countQuery(db, q)) as { total: number }[])[0]!;
   const rows = await base(db, q)
     .select(columns)

@@ -1,6 +1,7 @@
 /** Cores as the office lists them: door, state and the symbols of the keys that operate each. */
 import type { Knex } from 'knex';
-import type { CoreUpdate } from '../../shared/schemas/records';
+import type { Core, CoreUpdate } from '../../shared/schemas/records';
+import { isoOrNull } from './dates';
 import { notFound } from '../errors';
 
 export interface CoreFilter {
@@ -25,20 +26,22 @@ function coreQuery(db: Knex) {
     );
 }
 
+const answered = (row: Core): Core => ({ ...row, updatedAt: isoOrNull(row.updatedAt)! });
+
 /** At most 2,000 cores, by tag. */
-export async function listCores(db: Knex, f: CoreFilter) {
+export async function listCores(db: Knex, f: CoreFilter): Promise<Core[]> {
   const q = coreQuery(db).orderBy('c.tag').limit(2000);
   if (f.keySystemId) q.where('c.key_system_id', f.keySystemId);
   if (f.doorId) q.where('c.door_id', f.doorId);
   if (f.state) q.where('c.state', f.state);
   if (f.tag) q.where('c.tag', f.tag.toUpperCase());
-  return q;
+  return (await q).map(answered);
 }
 
-export async function getCore(db: Knex, id: string) {
+export async function getCore(db: Knex, id: string): Promise<Core> {
   const core = await coreQuery(db).where('c.id', id).first();
   if (!core) throw notFound('That core');
-  return core;
+  return answered(core);
 }
 
 /** Moves a core to another door (or none) or retires it; 404 when there is no such core. */

@@ -11,3 +11,6 @@ export function whereDays(db: Knex, q: Knex.QueryBuilder, column: string, f: { f
   if (f.to) q.where(column, '<', db.raw(`((?::date) + 1)::timestamp at time zone 'UTC' + ? * interval '1 minute'`, [f.to, tz]));
   return q;
 }
+
+/** A timestamp as the API answers it (ISO 8601 in UTC), or null; JSON would give the same text, the type says so. */
+export const isoOrNull = (value: unknown): string | null => (value ? new Date(value as string).toISOString() : null);

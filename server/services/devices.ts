@@ -5,6 +5,8 @@
  */
 import { randomBytes } from 'node:crypto';
 import type { Knex } from 'knex';
+import type { AdminDevice } from '../../shared/schemas/devices';
+import { isoOrNull } from './dates';
 import { HttpError } from '../errors';
 import type { Sealer } from './secrets';
 
@@ -24,12 +26,12 @@ export async function touchDevice(db: Knex, sealer: Sealer, userId: string, devi
   return touchDevice(db, sealer, userId, deviceId, label);
 }
 
-export async function listDevices(db: Knex) {
+export async function listDevices(db: Knex): Promise<AdminDevice[]> {
   const rows = await db('devices as v')
     .join('users as u', 'u.id', 'v.user_id')
     .orderBy('v.last_seen_at', 'desc')
     .select('v.id', 'v.label', 'u.id as userId', 'u.name as userName', 'u.email as userEmail', 'v.first_seen_at as firstSeenAt', 'v.last_seen_at as lastSeenAt', 'v.last_sync_at as lastSyncAt', 'v.last_sync_waiting as waiting', 'v.revoked_at as revokedAt');
-  return rows;
+  return rows.map((d) => ({ ...d, firstSeenAt: isoOrNull(d.firstSeenAt), lastSeenAt: isoOrNull(d.lastSeenAt), lastSyncAt: isoOrNull(d.lastSyncAt), revokedAt: isoOrNull(d.revokedAt) }));
 }
 
 export async function revokeDevice(db: Knex, deviceId: string, by: string): Promise<void> {

@@ -1,6 +1,8 @@
 /** Doors (openings): where cores go. A door's history comes from the installs table. */
 import type { Knex } from 'knex';
-import type { DoorInput, DoorUpdate } from '../../shared/schemas/records';
+import type { DoorHistoryEntry } from '../../shared/schemas/doors';
+import { isoOrNull } from './dates';
+import type { Door, DoorInput, DoorUpdate } from '../../shared/schemas/records';
 import { naturalCompare } from '../../shared/words';
 import { badRequest, conflict, notFound } from '../errors';
 
@@ -33,7 +35,7 @@ export function doorQuery(db: Knex) {
     );
 }
 
-export async function listDoors(db: Knex, f: DoorFilter) {
+export async function listDoors(db: Knex, f: DoorFilter): Promise<Door[]> {
   const q = doorQuery(db);
   if (f.q) {
     const like = `%${f.q.replace(/[%_\\]/g, (c) => `\\${c}`)}%`;
@@ -44,14 +46,14 @@ export async function listDoors(db: Knex, f: DoorFilter) {
   if (f.keySystemId) q.where('d.key_system_id', f.keySystemId);
   if (f.retired === 'only') q.whereNotNull('d.retired_at');
   else if (f.retired !== 'all') q.whereNull('d.retired_at');
-  const rows = (await q) as { building: string; label: string; retiredAt: unknown }[];
+  const rows = (await q) as Door[];
   // Building, then label in natural order (BL-2 before BL-10), as people read them.
   return rows.sort((a, b) => naturalCompare(a.building, b.building) || naturalCompare(a.label, b.label)).map(isoRetired);
 }
 
 const isoRetired = <T extends { retiredAt: unknown }>(d: T): T => ({ ...d, retiredAt: d.retiredAt ? new Date(d.retiredAt as string).toISOString() : null });
 
-export async function getDoor(db: Knex, id: string) {
+export async function getDoor(db: Knex, id: string): Promise<Door> {
   const door = await doorQuery(db).where('d.id', id).first();
   if (!door) throw notFound('That door');
   return isoRetired(door);
@@ -135,9 +137,9 @@ export async function updateDoor(db: Knex, id: string, input: DoorUpdate): Promi
 }
 
 /** Every core the door has had: from installs, newest first, with who built and installed it. */
-export async function doorHistory(db: Knex, id: string) {
+export async function doorHistory(db: Knex, id: string): Promise<DoorHistoryEntry[]> {
   await getDoor(db, id);
-  return db('installs as i')
+  const rows = await db('installs as i')
     .join('cores as c', 'c.id', 'i.core_id')
     .join('users as u', 'u.id', 'i.installed_by')
     .where('i.door_id', id)
@@ -158,4 +160,5 @@ export async function doorHistory(db: Knex, id: string) {
       db.raw(`(select u2.name from completions cp join users u2 on u2.id = cp.technician_id where cp.core_id = c.id and cp.result = 'passed' order by cp.finished_at desc limit 1) as "builtBy"`),
       db.raw(`(select cp.finished_at from completions cp where cp.core_id = c.id and cp.result = 'passed' order by cp.finished_at desc limit 1) as "builtAt"`),
     );
+  return rows.map((r) => ({ ...r, installedAt: isoOrNull(r.installedAt)!, mismatchReviewedAt: isoOrNull(r.mismatchReviewedAt), builtAt: isoOrNull(r.builtAt) }));
 }

@@ -1,8 +1,10 @@
 /** Installs the office still has to look at: a core in another door than the one it was built for (T4). */
 import type { Knex } from 'knex';
+import type { InstallMismatch, InstallReview } from '../../shared/schemas/installs';
+import { isoOrNull } from './dates';
 import { badRequest, notFound } from '../errors';
 
-export async function openMismatches(db: Knex) {
+export async function openMismatches(db: Knex): Promise<InstallMismatch[]> {
   const rows = await db('installs as i')
     .join('cores as c', 'c.id', 'i.core_id')
     .join('doors as d', 'd.id', 'i.door_id')
@@ -41,6 +43,7 @@ export async function markMismatchReviewed(db: Knex, id: string, userId: string)
 }
 
 /** Who reviewed an install, and when. */
-export async function reviewOf(db: Knex, id: string) {
-  return db('installs as i').leftJoin('users as u', 'u.id', 'i.reviewed_by').where('i.id', id).first('i.id', 'i.reviewed_at as reviewedAt', 'u.name as reviewedBy');
+export async function reviewOf(db: Knex, id: string): Promise<InstallReview['review']> {
+  const row = await db('installs as i').leftJoin('users as u', 'u.id', 'i.reviewed_by').where('i.id', id).first('i.id', 'i.reviewed_at as reviewedAt', 'u.name as reviewedBy');
+  return { ...row, reviewedAt: isoOrNull(row.reviewedAt) };
 }

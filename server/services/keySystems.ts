@@ -4,6 +4,8 @@
  */
 import { randomUUID } from 'node:crypto';
 import type { Knex } from 'knex';
+import type { KeyReplacement } from '../../shared/schemas/keySystems';
+import type { Key, KeySystem } from '../../shared/schemas/records';
 import { placementChecker, readBitting, type PlacementProblem, type PlacementSystem, type Profile } from '../../shared/keying';
 import type { KeyInput, KeyLevel, KeyReplace, KeySystemCreate, KeySystemUpdate, KeyStatus, KeyUpdate } from '../../shared/schemas/records';
 import { naturalCompare } from '../../shared/words';
@@ -96,7 +98,7 @@ export async function loadSystem(db: Knex, sealer: Sealer, systemId: string): Pr
   };
 }
 
-export async function listSystems(db: Knex, id?: string) {
+export async function listSystems(db: Knex, id?: string): Promise<KeySystem[]> {
   const q = db('key_systems as s');
   if (id) q.where('s.id', id);
   const rows = await q
@@ -107,7 +109,7 @@ export async function listSystems(db: Knex, id?: string) {
   return rows.map((r) => ({ ...r, createdAt: new Date(r.createdAt).toISOString(), updatedAt: new Date(r.updatedAt).toISOString() }));
 }
 
-export async function getSystem(db: Knex, id: string) {
+export async function getSystem(db: Knex, id: string): Promise<KeySystem> {
   const [row] = await listSystems(db, id);
   if (!row) throw notFound('That key system');
   return row;
@@ -143,7 +145,7 @@ export async function updateSystem(db: Knex, sealer: Sealer, id: string, input: 
 }
 
 /** Keys without their bittings, unless `reveal` (the caller audits it). */
-export async function listKeys(db: Knex, sealer: Sealer, systemId: string, reveal: boolean) {
+export async function listKeys(db: Knex, sealer: Sealer, systemId: string, reveal: boolean): Promise<Key[]> {
   if (!(await db('key_systems').where({ id: systemId }).first('id'))) throw notFound('That key system');
   const rows = await db('keys').where({ key_system_id: systemId }).orderBy('symbol');
   return rows.map((k) => ({ ...keyOf(k), keySystemId: k.key_system_id, ...(reveal ? { bitting: sealer.open(k.bitting_enc, keyContext(k.id)) } : {}) }));
@@ -202,7 +204,7 @@ export async function addKeys(db: Knex, sealer: Sealer, systemId: string, inputs
  * hand-entry path and its hierarchy rules). The old key is marked lost or retired and the doors
  * that took it take the new one; their cores still open to the old key until they are rekeyed.
  */
-export async function replaceKey(db: Knex, sealer: Sealer, systemId: string, keyId: string, input: KeyReplace): Promise<{ id: string; symbol: string; doors: string[]; coresToRekey: string[] }> {
+export async function replaceKey(db: Knex, sealer: Sealer, systemId: string, keyId: string, input: KeyReplace): Promise<KeyReplacement> {
   const system = await loadSystem(db, sealer, systemId);
   const old = system.keys.find((k) => k.id === keyId);
   if (!old) throw notFound('That key');

@@ -1,5 +1,6 @@
 /** The engine's chart for a door's keys before a work order is saved: issues and counts, no depths. */
 import type { Knex } from 'knex';
+import type { PinningPreview } from '../../shared/schemas/workOrders';
 import { badRequest } from '../errors';
 import { chainOf, loadSystem } from './keySystems';
 import type { Sealer } from './secrets';
@@ -11,7 +12,7 @@ export interface PinningRequest {
   crossKeyId?: string | null | undefined;
 }
 
-export async function previewPinning(db: Knex, sealer: Sealer, input: PinningRequest) {
+export async function previewPinning(db: Knex, sealer: Sealer, input: PinningRequest): Promise<PinningPreview> {
   const system = await loadSystem(db, sealer, input.keySystemId);
   const chain = chainOf(system.keys, input.keyId);
   if (!chain.length) throw badRequest('That key is not in this key system.', [{ field: 'keyId', message: 'not in this key system' }]);

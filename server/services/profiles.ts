@@ -1,12 +1,10 @@
 /** Profiles: the built-in ones from the engine, and custom ones an admin keeps in the database. */
 import type { Knex } from 'knex';
 import { builtInProfiles, validateProfile, type Profile } from '../../shared/keying';
+import type { ProfileRow } from '../../shared/schemas/profiles';
 import type { ProfileInput } from '../../shared/schemas/records';
 import { badRequest, conflict, notFound } from '../errors';
 
-export interface ProfileRow extends Profile {
-  builtIn: boolean;
-}
 
 export async function listProfiles(db: Knex): Promise<ProfileRow[]> {
   const custom = await db('profiles').orderBy('label').select('definition');
@@ -32,16 +30,16 @@ function check(input: ProfileInput): Profile {
   return input;
 }
 
-export async function createProfile(db: Knex, input: ProfileInput): Promise<Profile> {
+export async function createProfile(db: Knex, input: ProfileInput): Promise<ProfileRow> {
   const profile = check(input);
   if (builtInProfiles[profile.id] || (await db('profiles').where({ id: profile.id }).first('id'))) {
     throw conflict(`A profile with the id "${profile.id}" exists already; choose another id.`, [{ field: 'id', message: 'already used' }]);
   }
   await db('profiles').insert({ id: profile.id, label: profile.label, definition: JSON.stringify(profile) });
-  return profile;
+  return { ...profile, builtIn: false };
 }
 
-export async function updateProfile(db: Knex, id: string, input: ProfileInput): Promise<Profile> {
+export async function updateProfile(db: Knex, id: string, input: ProfileInput): Promise<ProfileRow> {
   if (builtInProfiles[id]) throw badRequest('Built-in profiles cannot be changed; make a custom profile from it instead.');
   if (input.id !== id) throw badRequest('The id of a profile cannot change.', [{ field: 'id', message: `must stay "${id}"` }]);
   const inUse = await db('key_systems').where({ profile_id: id }).first('id');
@@ -54,5 +52,5 @@ export async function updateProfile(db: Knex, id: string, input: ProfileInput): 
   }
   const n = await db('profiles').where({ id }).update({ label: profile.label, definition: JSON.stringify(profile), updated_at: db.fn.now() });
   if (!n) throw notFound(`Profile "${id}"`);
-  return profile;
+  return { ...profile, builtIn: false };
 }

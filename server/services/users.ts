@@ -1,6 +1,8 @@
 /** Accounts: invitations by e-mail with a one-time set-password link, role changes, deactivation. */
 import { randomBytes } from 'node:crypto';
 import type { Knex } from 'knex';
+import type { AdminUser, Technician } from '../../shared/schemas/users';
+import { isoOrNull } from './dates';
 import type { InviteRequest, Role, UserUpdate } from '../../shared/schemas/auth';
 import { badRequest, conflict, HttpError, notFound } from '../errors';
 import { hashPassword } from './passwords';
@@ -9,12 +11,13 @@ import { sha256 } from './tokens';
 
 const INVITE_HOURS = 72;
 
-export async function listUsers(db: Knex, id?: string) {
+export async function listUsers(db: Knex, id?: string): Promise<AdminUser[]> {
   const q = db('users as u');
   if (id) q.where('u.id', id);
-  return q
+  const rows = await q
     .orderBy('u.email')
     .select('u.id', 'u.email', 'u.name', 'u.role', 'u.active', 'u.created_at as createdAt', db.raw('(u.password_hash is not null) as "hasPassword"'));
+  return rows.map((u) => ({ ...u, createdAt: isoOrNull(u.createdAt)! }));
 }
 
 /** What sign-in checks: the password hash and whether the account is active. */
@@ -28,7 +31,7 @@ export async function emailOf(db: Knex, id: string): Promise<{ email: string } |
 }
 
 /** Active technicians and supervisors, for assigning work orders. */
-export async function listTechnicians(db: Knex) {
+export async function listTechnicians(db: Knex): Promise<Technician[]> {
   return db('users').where({ active: true }).whereIn('role', ['technician', 'supervisor']).orderBy('name').select('id', 'name', 'email', 'role');
 }
 

@@ -1,5 +1,7 @@
 /** Work orders as lists: the office's and a technician's own, and the cores of one order with where each is. */
 import type { Knex } from 'knex';
+import type { WorkOrder } from '../../shared/schemas/records';
+import type { WorkOrderCore } from '../../shared/schemas/workOrders';
 import { iso, workOrderQuery } from './workOrders';
 
 export interface WorkOrderListFilter {
@@ -8,7 +10,7 @@ export interface WorkOrderListFilter {
   status?: string | undefined;
 }
 
-export async function listWorkOrders(db: Knex, f: WorkOrderListFilter) {
+export async function listWorkOrders(db: Knex, f: WorkOrderListFilter): Promise<WorkOrder[]> {
   const query = workOrderQuery(db).orderBy([{ column: 'w.due_date', order: 'asc', nulls: 'last' }, { column: 'w.number', order: 'desc' }]);
   if (f.assigneeId) query.where('w.assignee_id', f.assigneeId).whereNotIn('w.status', ['draft', 'cancelled']);
   if (f.status === 'open') query.whereNotIn('w.status', ['done', 'cancelled']);
@@ -17,7 +19,7 @@ export async function listWorkOrders(db: Knex, f: WorkOrderListFilter) {
 }
 
 /** doorId/doorLabel: where the core IS; plannedDoorLabel: where it was planned; doorMismatch: an install elsewhere not yet reviewed (T4). */
-export async function workOrderCores(db: Knex, workOrderId: string) {
+export async function workOrderCores(db: Knex, workOrderId: string): Promise<WorkOrderCore[]> {
   return db('work_order_cores as x')
     .join('cores as c', 'c.id', 'x.core_id')
     .leftJoin('doors as d', 'd.id', 'c.door_id')

@@ -7,7 +7,7 @@ import type { Knex } from 'knex';
 import { hasErrors, keyOperates, pinCore, trayFor, type CorePinning } from '../../shared/keying';
 import type { KeyCheckItem, Packet } from '../../shared/schemas/packet';
 import { compareSymbols } from '../../shared/keyLevels';
-import type { WorkOrderDoor, WorkOrderInput, WorkOrderUpdate } from '../../shared/schemas/records';
+import type { WorkOrder, WorkOrderDoor, WorkOrderInput, WorkOrderUpdate } from '../../shared/schemas/records';
 import { badRequest, conflict, notFound } from '../errors';
 import { chainOf, loadSystem, type LoadedSystem, type SystemKey } from './keySystems';
 import type { Sealer } from './secrets';
@@ -51,7 +51,7 @@ export function workOrderQuery(db: Knex) {
 
 export const iso = <T extends { createdAt?: unknown }>(r: T): T => ({ ...r, createdAt: r.createdAt ? new Date(r.createdAt as string).toISOString() : r.createdAt });
 
-export async function getWorkOrder(db: Knex, id: string) {
+export async function getWorkOrder(db: Knex, id: string): Promise<WorkOrder> {
   const row = await workOrderQuery(db).where('w.id', id).first();
   if (!row) throw notFound('That work order');
   return iso(row);

@@ -38,6 +38,12 @@ export const SignInResponse = z.object({
   user: User,
 });
 export type SignInResponse = z.infer<typeof SignInResponse>;
+/** Who is signed in (GET /api/auth/me). */
+export const Me = z.object({ user: User });
+export type Me = z.infer<typeof Me>;
+/** The address whose password was just set from an invitation link. */
+export const PasswordSet = z.object({ email: z.string() });
+export type PasswordSet = z.infer<typeof PasswordSet>;
 
 export const Health = z.object({
   status: z.enum(['ok', 'degraded']),

@@ -54,3 +54,6 @@ export const PageQuery = z.object({
   page: z.coerce.number().int().min(1, { error: 'page starts at 1' }).default(1),
   pageSize: z.coerce.number().int().min(1).max(200, { error: 'pageSize is at most 200' }).default(25),
 });
+/** The answer of a write that has nothing else to say. */
+export const Ok = z.object({ ok: z.boolean() });
+export type Ok = z.infer<typeof Ok>;

@@ -1,5 +1,7 @@
 import { z } from 'zod';
 import { Id, IsoDate, TzOffset } from './common';
+import { KeyLevel } from './records';
+import { Attempt } from './sync';
 
 export const completionSorts = ['finishedAt', 'startedAt', 'technician', 'door', 'core', 'result', 'workOrder'] as const;
 
@@ -57,3 +59,32 @@ export const CompletionPage = z.object({
   pageSize: z.number(),
 });
 export type CompletionPage = z.infer<typeof CompletionPage>;
+
+/** The core's newest install as the completion detail shows it. */
+export const CompletionInstall = z.object({
+  id: z.uuid(),
+  doorLabel: z.string(),
+  installedAt: z.string(),
+  installedBy: z.string(),
+  removedCoreTag: z.string().nullable(),
+  notes: z.string().nullable(),
+  doorMismatch: z.boolean(),
+  mismatchReason: z.string().nullable(),
+  plannedDoorLabel: z.string().nullable(),
+  reviewedAt: z.string().nullable(),
+  reviewedBy: z.string().nullable(),
+});
+export type CompletionInstall = z.infer<typeof CompletionInstall>;
+export const CompletionDetail = CompletionRow.extend({
+  attempts: z.array(Attempt),
+  notes: z.string().nullable(),
+  deviceId: z.string().nullable(),
+  install: CompletionInstall.nullable(),
+  /** The per-part sizes are sealed; they come back only on an audited reveal. */
+  hasPinSizes: z.boolean(),
+  /** Each key symbol of the core's system with its level, to name a master by its level. */
+  keyLevels: z.record(z.string(), KeyLevel).default({}),
+});
+export type CompletionDetail = z.infer<typeof CompletionDetail>;
+export const CompletionAnswer = z.object({ completion: CompletionDetail });
+export type CompletionAnswer = z.infer<typeof CompletionAnswer>;

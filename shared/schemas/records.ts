@@ -218,7 +218,7 @@ export const Core = z.object({
   doorId: Id.nullable(),
   doorLabel: z.string().nullable(),
   state: CoreState,
-  operatingKeyIds: z.array(Id),
+  /** The symbols of the keys that operate the core, highest level first. */
   operatingSymbols: z.array(z.string()),
   updatedAt: z.string(),
 });

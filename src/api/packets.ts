@@ -1,11 +1,9 @@
 /** The technician's side of work orders: the ones assigned to me, and their offline packets. */
-import { z } from 'zod';
-import { Packet } from '@shared/schemas/packet';
-import { WorkOrder } from '@shared/schemas/records';
+import { PacketAnswer, WorkOrderList } from '@shared/schemas/workOrders';
 import { request } from './http';
 
-export const listMyWorkOrders = async () => (await request('GET', '/api/work-orders?mine=1', { schema: z.object({ workOrders: z.array(WorkOrder) }) })).workOrders;
+export const listMyWorkOrders = async () => (await request('GET', '/api/work-orders?mine=1', { schema: WorkOrderList })).workOrders;
 
 /** Downloading a packet is audited by the server (who, which tablet, when). */
 export const fetchPacket = async (workOrderId: string) =>
-  (await request('GET', `/api/work-orders/${workOrderId}/packet`, { schema: z.object({ packet: Packet }) })).packet;
+  (await request('GET', `/api/work-orders/${workOrderId}/packet`, { schema: PacketAnswer })).packet;

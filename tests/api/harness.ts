@@ -12,6 +12,7 @@ import { DEMO_PASSWORD, demoUsers, seedDemo, seedUsers } from '../../server/seed
 import { hashPassword } from '../../server/services/passwords';
 import { startFakeSmtp, type CapturedMail, type FakeSmtp } from '../../server/dev/fakeSmtp';
 import { createSealer, type Sealer } from '../../server/services/secrets';
+import { answers, checkAnswer, type Answer } from './responses';
 
 export interface Reply {
   status: number;
@@ -28,6 +29,8 @@ export interface CallOptions {
   raw?: string | Buffer | FormData;
   contentType?: string;
   headers?: Record<string, string>;
+  /** The response schemas this answer is parsed with (tests/api/responses.ts); a test passes a wrong one to see the check bite. */
+  answers?: Record<string, Answer>;
 }
 
 export interface Harness {
@@ -103,7 +106,10 @@ export async function startHarness(env: Record<string, string> = {}, opts: { dem
     } catch {
       json = undefined;
     }
-    return { status: res.status, headers: res.headers, text, json };
+    const reply = { status: res.status, headers: res.headers, text, json };
+    // Every answer is parsed with its route's schema (errors with the shared one): a drift throws here.
+    checkAnswer(method, res.redirected ? new URL(res.url).pathname : path, reply, opts.answers ?? answers);
+    return reply;
   }
 
   const tokens = new Map<string, string>();
