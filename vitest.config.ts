@@ -34,7 +34,7 @@ export default defineConfig({
       },
       {
         resolve: { alias },
-        test: { name: 'bench', include: [], benchmark: { include: ['bench/**/*.bench.ts'] } },
+        test: { name: 'bench', include: [], benchmark: { include: ['benchmarks/**/*.bench.ts'] } },
       },
     ],
   },

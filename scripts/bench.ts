@@ -1,5 +1,5 @@
 /**
- * `npm run bench`: the benchmarks, never timed tests. Writes bench/results.json and prints
+ * `npm run bench`: the benchmarks, never timed tests. Writes benchmarks/results.json and prints
  * a summary. Steps: the keying engine (vitest bench), sync load and the completion log on
  * a throw-away Postgres with a real server process, and the Bench in Chromium.
  * `npm run bench -- engine load browser` runs the parts named.
@@ -8,7 +8,7 @@ import { spawn, spawnSync } from 'node:child_process';
 import { chmodSync, existsSync, mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { cpus } from 'node:os';
 import path from 'node:path';
-import { completionLog, syncLoad } from '../bench/load';
+import { completionLog, syncLoad } from '../benchmarks/load';
 import { createDb, migrateLatest } from '../server/db';
 import { ensureDatabase, freePort, startCluster, stopCluster } from './lib/postgres';
 import { ensureChromium } from './lib/chromium';
@@ -16,14 +16,14 @@ import { ensureChromium } from './lib/chromium';
 const root = path.resolve(import.meta.dirname, '..');
 const parts = process.argv.slice(2).filter((a) => ['engine', 'load', 'browser'].includes(a));
 const want = (p: string) => !parts.length || parts.includes(p);
-const outFile = path.join(root, 'bench/results.json');
+const outFile = path.join(root, 'benchmarks/results.json');
 const results: Record<string, unknown> = existsSync(outFile) ? JSON.parse(readFileSync(outFile, 'utf8')) : {};
 results.machine = { cpus: cpus().length, cpu: cpus()[0]?.model, node: process.version, at: new Date().toISOString() };
 
 if (want('engine')) {
-  const r = spawnSync('npx', ['vitest', 'bench', '--run', '--project', 'bench', '--outputJson', 'bench/vitest-bench.json'], { cwd: root, stdio: 'inherit' });
+  const r = spawnSync('npx', ['vitest', 'bench', '--run', '--project', 'bench', '--outputJson', 'benchmarks/vitest-bench.json'], { cwd: root, stdio: 'inherit' });
   if (r.status !== 0) throw new Error('the engine benchmark failed');
-  results.engine = JSON.parse(readFileSync(path.join(root, 'bench/keying-results.json'), 'utf8'));
+  results.engine = JSON.parse(readFileSync(path.join(root, 'benchmarks/keying-results.json'), 'utf8'));
 }
 
 /** A throw-away cluster with `processes` API server processes on it (default one); `run` gets their addresses. */
@@ -89,7 +89,7 @@ if (want('load')) {
 }
 
 if (want('browser')) {
-  const { benchBrowser } = await import('../bench/browser');
+  const { benchBrowser } = await import('../benchmarks/browser');
   ensureChromium();
   results.browser = await withServer(([base]) => benchBrowser(base!), { build: true });
   console.log(JSON.stringify(results.browser, null, 2));

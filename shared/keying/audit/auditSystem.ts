@@ -13,7 +13,7 @@ import type { AuditFinding, AuditInput } from './types';
 
 /**
  * Audits a whole system with the given searches. Exposed so a baseline (the all-pairs
- * audit in bench/) can run the same checks with its own searches and be compared.
+ * audit in benchmarks/) can run the same checks with its own searches and be compared.
  */
 export function auditSystemWith(profile: Profile, system: AuditInput, finders: AuditFinders): AuditFinding[] {
   const ctx = buildContext(profile, system);

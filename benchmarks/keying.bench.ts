@@ -1,11 +1,11 @@
 /**
  * Keying engine benchmarks (`npm run bench -- engine`). Inputs come from fixed seeds
- * (bench/systems.ts) so every run measures the same work. Besides vitest's own report,
+ * (benchmarks/systems.ts) so every run measures the same work. Besides vitest's own report,
  * this file times the targets with performance.now() (wall) and process.cpuUsage() (CPU,
  * which a busy machine inflates less), checks the indexed audit against the all-pairs
  * baseline, prints one line per target and a table of how the audit grows with cores and
- * keys, and writes the figures to bench/keying-results.json (scripts/bench.ts folds them
- * into bench/results.json).
+ * keys, and writes the figures to benchmarks/keying-results.json (scripts/bench.ts folds them
+ * into benchmarks/results.json).
  */
 import { writeFileSync } from 'node:fs';
 import { cpus, loadavg } from 'node:os';
