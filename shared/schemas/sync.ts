@@ -31,8 +31,11 @@ export const KeyCheckResult = z.strictObject({
 });
 export type KeyCheckResult = z.infer<typeof KeyCheckResult>;
 
+/** A core is loaded at most this many times in one completion record (the Bench stops offering a rebuild). */
+export const BUILD_ATTEMPT_LIMIT = 50;
+
 export const Attempt = z.strictObject({
-  n: z.number().int().min(1).max(50),
+  n: z.number().int().min(1).max(BUILD_ATTEMPT_LIMIT),
   startedAt: IsoDateTime,
   finishedAt: IsoDateTime,
   result: z.enum(['passed', 'failed']),
@@ -50,7 +53,7 @@ export const CompletionRecord = z.strictObject({
   finishedAt: IsoDateTime,
   /** passed: built, checked, capped and checked again; failed: set aside for a rebuild. */
   result: z.enum(['passed', 'failed']),
-  attempts: z.array(Attempt).min(1, { error: 'a completion has at least one attempt' }).max(50),
+  attempts: z.array(Attempt).min(1, { error: 'a completion has at least one attempt' }).max(BUILD_ATTEMPT_LIMIT),
   notes: Notes(2000, 'the notes').optional(),
 });
 export type CompletionRecord = z.infer<typeof CompletionRecord>;

@@ -10,13 +10,13 @@
  */
 import type { Profile } from '@shared/keying';
 import type { KeyCheckItem, PacketCore } from '@shared/schemas/packet';
-import type { BenchStep, CompletionRecord, KeyCheckResult } from '@shared/schemas/sync';
+import { BUILD_ATTEMPT_LIMIT, type BenchStep, type CompletionRecord, type KeyCheckResult } from '@shared/schemas/sync';
 import { keyCheckOrder } from './keyCheck';
 import { capStep, loadingSteps, type LoadingStep } from './steps';
 
 export const BENCH_SESSION_VERSION = 1;
-/** The record allows at most 50 attempts (shared/schemas/sync.ts). */
-export const MAX_ATTEMPTS = 50;
+/** The record allows at most this many attempts (defined once in shared/schemas/sync.ts). */
+export { BUILD_ATTEMPT_LIMIT };
 
 export type BenchPhase = 'loading' | 'key-check-before-cap' | 'capping' | 'key-check-after-cap' | 'rebuild' | 'done';
 export type Outcome = 'passed' | 'failed';
@@ -212,7 +212,7 @@ export function recordKeyCheck(s: BenchSession, result: Outcome, now: Date, note
 }
 
 export function canRebuild(s: BenchSession): boolean {
-  return s.phase === 'rebuild' && s.attempts.length < MAX_ATTEMPTS;
+  return s.phase === 'rebuild' && s.attempts.length < BUILD_ATTEMPT_LIMIT;
 }
 
 /** After a failed check: empty the core and start a new attempt from the first part. */

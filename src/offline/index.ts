@@ -70,7 +70,7 @@ export type { ProgressUpdate } from './recordFinished';
 export { requestPersistence, type Persistence } from './storage';
 export { BenchProgress, type ProgressSummary } from './bench';
 export { checkPassphrase, PASSPHRASE_RULE, type PassphraseCheck } from './passphrase';
-export { MAX_ATTEMPTS, type VaultState, type VaultStatus, type VaultResult, type VaultErrorCode, type Who, type KdfOptions } from './vault';
+export { UNLOCK_ATTEMPT_LIMIT, type VaultState, type VaultStatus, type VaultResult, type VaultErrorCode, type Who, type KdfOptions } from './vault';
 export { PBKDF2_ITERATIONS } from './crypto';
 export { onProblem, QUOTA_MESSAGE, type Problem, type WriteResult, type WriteFailure, VaultLockedError, IntegrityError } from './errors';
 export type { OutboxEntry, OutboxCount, Flag } from './outbox';

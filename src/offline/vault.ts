@@ -18,7 +18,7 @@ import { unescrowedKeys } from './bench';
 import { checkPassphrase } from './passphrase';
 import { AAD, up, type VaultRecord, type WipeReason } from './vaultRecord';
 
-export const MAX_ATTEMPTS = 5;
+export const UNLOCK_ATTEMPT_LIMIT = 5;
 const MARKER = 'corewright vault v1';
 
 export type VaultState = 'needs-setup' | 'locked' | 'unlocked' | 'wiped' | 'revoked' | 'damaged';
@@ -71,7 +71,7 @@ export async function status(): Promise<VaultStatus> {
   const { raw, record } = await load();
   return {
     state: stateOf(raw, record),
-    remainingAttempts: record ? Math.max(0, MAX_ATTEMPTS - record.failedAttempts) : MAX_ATTEMPTS,
+    remainingAttempts: record ? Math.max(0, UNLOCK_ATTEMPT_LIMIT - record.failedAttempts) : UNLOCK_ATTEMPT_LIMIT,
     userId: record?.userId ?? null,
     deviceId: record?.deviceId ?? null,
     wipeReason: record?.wiped?.reason ?? null,
@@ -163,11 +163,11 @@ export function unlock(passphrase: string): Promise<VaultResult> {
     try {
       await open(kek, AAD.verifier, record.verifier);
     } catch {
-      if (counted.failedAttempts >= MAX_ATTEMPTS) {
+      if (counted.failedAttempts >= UNLOCK_ATTEMPT_LIMIT) {
         await wipe(counted, 'lockout');
         return fail('wiped', 'Too many wrong passphrases: packets were wiped for safety. Finished work is kept and will sync after you sign in again.');
       }
-      const left = MAX_ATTEMPTS - counted.failedAttempts;
+      const left = UNLOCK_ATTEMPT_LIMIT - counted.failedAttempts;
       return fail('wrong', `Wrong passphrase. ${left} ${left === 1 ? 'try' : 'tries'} left before packets are wiped.`, left);
     }
     try {
