@@ -3,6 +3,7 @@
  * purpose: a Bench progress change and its outbox entry must commit in one transaction.
  *
  *   vault                 the vault record: salt, iteration count, wrapped keys, attempts (no plaintext secret)
+ *   device                the device id (device.ts; the vault record's once it exists)
  *   packet:<workOrderId>  a work order's packet, sealed with the packet key
  *   bench:<coreId>        Bench progress of one core, sealed with the outbox key (escrowed; older: packet key)
  *   outbox:<clientId>     one finished record waiting for Sync, sealed with the outbox key
@@ -15,6 +16,7 @@ import { createStore, get, promisifyRequest, type UseStore } from 'idb-keyval';
 
 export const KEY = {
   vault: 'vault',
+  device: 'device',
   sync: 'sync',
   packet: (workOrderId: string) => `packet:${workOrderId}`,
   bench: (coreId: string) => `bench:${coreId}`,

@@ -70,6 +70,7 @@ export type { ProgressUpdate } from './recordFinished';
 export { requestPersistence, type Persistence } from './storage';
 export { BenchProgress, type ProgressSummary } from './bench';
 export { checkPassphrase, PASSPHRASE_RULE, type PassphraseCheck } from './passphrase';
+export { deviceId, LEGACY_DEVICE_KEY } from './device';
 export { UNLOCK_ATTEMPT_LIMIT, type VaultState, type VaultStatus, type VaultResult, type VaultErrorCode, type Who, type KdfOptions } from './vault';
 export { PBKDF2_ITERATIONS } from './crypto';
 export { onProblem, QUOTA_MESSAGE, type Problem, type WriteResult, type WriteFailure, VaultLockedError, IntegrityError } from './errors';

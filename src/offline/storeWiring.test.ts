@@ -6,22 +6,8 @@ import { KEY } from './db';
 import * as outbox from './outbox';
 import * as packets from './packets';
 import { completion, packet, who } from './testing/fixtures';
-import { allKeys, resetOffline } from './testing/harness';
+import { allKeys, memoryStorage, resetOffline } from './testing/harness';
 import { recordFinished } from './recordFinished';
-
-function memoryStorage(): Storage {
-  const map = new Map<string, string>();
-  return {
-    get length() {
-      return map.size;
-    },
-    clear: () => map.clear(),
-    getItem: (k) => map.get(k) ?? null,
-    key: (i) => [...map.keys()][i] ?? null,
-    removeItem: (k) => void map.delete(k),
-    setItem: (k, v) => void map.set(k, String(v)),
-  };
-}
 
 beforeEach(async () => {
   await resetOffline();

@@ -9,7 +9,7 @@ import { roleRank, type Role, type SignInResponse, type User } from '@shared/sch
 import * as authApi from '@/api/auth';
 import { ApiError, useTokenSource } from '@/api/http';
 import { refreshAcrossTabs } from '@/api/refreshLock';
-import { lockManager } from '@/offline';
+import { deviceId, lockManager } from '@/offline';
 
 const KEY = 'cw.session';
 interface Stored {
@@ -27,15 +27,6 @@ function load(): Stored | null {
   } catch {
     return null;
   }
-}
-
-export function deviceId(): string {
-  let id = localStorage.getItem('cw.device');
-  if (!id) {
-    id = crypto.randomUUID();
-    localStorage.setItem('cw.device', id);
-  }
-  return id;
 }
 
 export const useSessionStore = defineStore('session', () => {
@@ -58,7 +49,9 @@ export const useSessionStore = defineStore('session', () => {
   }
 
   async function signIn(email: string, password: string): Promise<void> {
-    accept(await authApi.signIn({ email, password, deviceId: deviceId() }));
+    // Without IndexedDB (a locked-down office browser) the sign-in goes on without a device: no packets then.
+    const device = await deviceId().catch(() => undefined);
+    accept(await authApi.signIn({ email, password, ...(device ? { deviceId: device } : {}) }));
   }
 
   let refreshing: Promise<string | null> | null = null;

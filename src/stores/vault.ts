@@ -5,8 +5,8 @@
  */
 import { defineStore } from 'pinia';
 import { computed, readonly, ref } from 'vue';
-import { onProblem, packets, sync, vault, type Problem, type VaultResult, type VaultStatus } from '@/offline';
-import { deviceId, useSessionStore } from './session';
+import { deviceId, onProblem, packets, sync, vault, type Problem, type VaultResult, type VaultStatus } from '@/offline';
+import { useSessionStore } from './session';
 
 /** Why the vault is locked, for the unlock screen; null: the app was (re)started, so the keys left memory. */
 export type LockReason = { kind: 'idle'; minutes: number } | { kind: 'signed-in' } | null;
@@ -62,7 +62,7 @@ export const useVaultStore = defineStore('vault', () => {
   function setup(passphrase: string): Promise<VaultResult> {
     const user = session.user;
     if (!user) return Promise.resolve({ ok: false, code: 'state', message: 'Sign in first.' });
-    return run(async () => afterOpen(await vault.setup(passphrase, { userId: user.id, deviceId: deviceId(), label: `${user.name}’s tablet` })));
+    return run(async () => afterOpen(await vault.setup(passphrase, { userId: user.id, deviceId: await deviceId(), label: `${user.name}’s tablet` })));
   }
 
   function unlock(passphrase: string): Promise<VaultResult> {

@@ -82,3 +82,18 @@ export function misbehavingStore(nthPut: number, how: 'throw' | 'abort', error: 
       return callback(os);
     });
 }
+
+/** localStorage for the store tests (Node has none). */
+export function memoryStorage(): Storage {
+  const map = new Map<string, string>();
+  return {
+    get length() {
+      return map.size;
+    },
+    clear: () => map.clear(),
+    getItem: (k) => map.get(k) ?? null,
+    key: (i) => [...map.keys()][i] ?? null,
+    removeItem: (k) => void map.delete(k),
+    setItem: (k, v) => void map.set(k, String(v)),
+  };
+}
