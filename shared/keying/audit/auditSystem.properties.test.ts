@@ -143,3 +143,31 @@ describe('auditSystem: the expensive searches', () => {
     }), { numRuns: runs(150) });
   }, 60_000);
 });
+
+describe('auditSystem: the control openings summary against pinCore core by core', () => {
+  test('counts the pinned cores, those releasing for more than the control key, and names the first core with the largest count (brute force over pinCore)', () => {
+    fc.assert(fc.property(systems, ([profile, system]) => {
+      const findings = auditSystem(profile, system);
+      const readable = system.keys.filter((k) => readBitting(profile, k.bitting).ok);
+      const pinnings = system.cores.map((core) => pinCore(profile, { operating: readable.filter((k) => core.operating.includes(k.id)).map((k) => k.bitting), control: system.control }));
+      const pinned = pinnings.filter((p) => p.chambers.length > 0).length;
+      const summary = findings.filter((f) => f.code === 'control-openings');
+      if (!readBitting(profile, system.control).ok) return;
+      if (pinned === 0) {
+        expect(summary).toEqual([]);
+        return;
+      }
+      const more = system.cores.filter((_, c) => pinnings[c]!.chambers.length > 0 && pinnings[c]!.controlOpeningsCount > 1).map((c) => c.id);
+      let largest = 0;
+      let first = -1;
+      pinnings.forEach((p, c) => {
+        if (p.chambers.length > 0 && p.controlOpeningsCount > largest) [largest, first] = [p.controlOpeningsCount, c];
+      });
+      expect(summary).toHaveLength(1);
+      expect(summary[0]).toMatchObject({ severity: 'info', cores: more, data: { cores: pinned, coresOverOne: more.length, largestControlOpenings: largest } });
+      if (more.length === 0) expect(summary[0]!.message).toMatch(/^Control openings: each of the /);
+      else expect(summary[0]!.message).toContain(`core ${system.cores[first]!.label ?? system.cores[first]!.id})`);
+      for (const f of findings.filter((x) => x.code === 'key-releases-core')) expect(f.data).toEqual({ cores: f.cores!.length });
+    }), { numRuns: runs(150) });
+  }, 60_000);
+});

@@ -222,6 +222,12 @@ describe('auditSystem: the control shear line', () => {
     });
   });
 
+  test('the summary names the first core, in system order, among those with the largest count (common practice: a stable report)', () => {
+    const summary = auditSystem(smallKit(sfic6), example).find((f) => f.code === 'control-openings');
+    expect(summary?.data?.largestControlOpenings).toBeGreaterThan(1);
+    expect(summary?.message).toContain('core C-001 (Room 101))');
+  });
+
   test('no finding names a key by its position in a list', () => {
     for (const f of auditSystem(smallKit(sfic6), example)) expect(f.message, f.code).not.toMatch(/(Operating|Change) key \d/);
   });
