@@ -5,8 +5,7 @@ import type { CorePinning } from './types';
 export class KeyingError extends Error {
   override readonly name = 'KeyingError';
   readonly code: KeyingIssueCode;
-  // `declare`: no class-field initialiser, so an error without a chamber has no `chamber` key at all.
-  declare readonly chamber?: number;
+  readonly chamber?: number;
 
   constructor(code: KeyingIssueCode, message: string, chamber?: number) {
     super(message);
