@@ -49,6 +49,17 @@ export const actionWords: Record<string, string> = {
   'sync.batch': 'Synced finished work',
   'sync.refused-revoked': 'Sync refused: tablet revoked',
   'access.denied': 'Access refused',
+  'department.created': 'Added a department',
+  'holder.created': 'Added a key holder',
+  'holder.updated': 'Changed a key holder',
+  'holder.leaving': 'Marked a key holder as leaving',
+  'holder.left': 'Marked a key holder as gone',
+  'holders.imported': 'Imported key holders',
+  'key.issued': 'Issued a key',
+  'key.returned': 'Took back a key',
+  'key.reported': 'Reported a key lost or stolen',
+  'key-request.created': 'Asked for a key',
+  'key-request.decided': 'Decided a key request',
 };
 
 /** "door.retired" → its words; an action not listed yet still reads as words, not a code. */

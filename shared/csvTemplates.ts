@@ -47,3 +47,17 @@ export function keyTemplateCsv(profile?: TemplateProfile): string {
     ]),
   ]);
 }
+
+export const HOLDER_COLUMNS = ['name', 'department', 'email', 'badge_id'] as const;
+
+export function holderTemplateCsv(): string {
+  return crlf([
+    HOLDER_COLUMNS.join(','),
+    ...comment([
+      'Lines starting with # are skipped. Put one key holder per line under the header; keep the header as it is.',
+      'name, department: required. A department not known yet is added.',
+      'email: where reminders and key audits go; may be empty. badge_id: the employee or badge id, unique; may be empty.',
+      'Example: Dana Example,Facilities,dana@example.test,B-1001',
+    ]),
+  ]);
+}

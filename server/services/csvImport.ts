@@ -8,10 +8,12 @@ import type { Knex } from 'knex';
 import { auditSystem, placementChecker, readBitting } from '../../shared/keying';
 import { auditInputFor } from './systemAudit';
 import { textProblem } from '../../shared/schemas/common';
-import { DOOR_COLUMNS, KEY_COLUMNS, LEVEL_WORDS } from '../../shared/csvTemplates';
+import { DOOR_COLUMNS, HOLDER_COLUMNS, KEY_COLUMNS, LEVEL_WORDS } from '../../shared/csvTemplates';
 import { DoorInput, KeyInput, KeyLevel } from '../../shared/schemas/records';
+import { HolderInput } from '../../shared/schemas/keyControl';
 import { badRequest } from '../errors';
 import { createDoors } from './doors';
+import { createHolders } from './keyHolders';
 import { addKeys, loadSystem, placementSystemOf, type LoadedSystem } from './keySystems';
 import type { Sealer } from './secrets';
 
@@ -228,5 +230,37 @@ export async function importDoors(db: Knex, file: Buffer, commit: boolean): Prom
   const preview = parsed.map((d) => ({ label: d.label, site: d.site, building: d.building, floor: d.floor, room: d.room, fireRated: d.fireRated }));
   if (!commit || errors.length) return { rows: records.length, errors, warnings: [], preview, committed: false, created: 0 };
   const ids = await createDoors(db, parsed);
+  return { rows: records.length, errors, warnings: [], preview, committed: true, created: ids.length };
+}
+
+/** Key holders: name and department required, e-mail and badge id checked; all or nothing. */
+export async function importHolders(db: Knex, file: Buffer, commit: boolean): Promise<ImportResult> {
+  const records = readCsv(file, ['name', 'department'], [...HOLDER_COLUMNS]);
+  if (!records.length) return nothingYet;
+  const { errors, bad } = cellProblems(records);
+  const badges = new Set(((await db('key_holders').whereNotNull('badge_id').pluck('badge_id')) as string[]).map((b) => b.toLowerCase()));
+  const seen = new Map<string, number>();
+  const parsed: HolderInput[] = [];
+  records.forEach((r, i) => {
+    if (bad.has(i)) return;
+    const row = r.__row;
+    const result = HolderInput.safeParse({ name: r.name, department: r.department, ...(r.email ? { email: r.email } : {}), ...(r.badge_id ? { badgeId: r.badge_id } : {}) });
+    if (!result.success) {
+      for (const issue of result.error.issues) {
+        const col = String(issue.path[0] ?? '');
+        errors.push({ row, column: col === 'badgeId' ? 'badge_id' : col || null, message: issue.message });
+      }
+      return;
+    }
+    const badge = result.data.badgeId?.toLowerCase();
+    if (badge && badges.has(badge)) errors.push({ row, column: 'badge_id', message: `badge id ${result.data.badgeId} belongs to a key holder already` });
+    if (badge && seen.has(badge)) errors.push({ row, column: 'badge_id', message: `badge id ${result.data.badgeId} appears more than once (first on row ${records[seen.get(badge)!]!.__row})` });
+    else if (badge) seen.set(badge, i);
+    parsed.push(result.data);
+  });
+  errors.sort((a, b) => a.row - b.row);
+  const preview = parsed.map((h) => ({ name: h.name, department: h.department, email: h.email ?? null, badgeId: h.badgeId ?? null }));
+  if (!commit || errors.length) return { rows: records.length, errors, warnings: [], preview, committed: false, created: 0 };
+  const ids = await createHolders(db, parsed);
   return { rows: records.length, errors, warnings: [], preview, committed: true, created: ids.length };
 }
