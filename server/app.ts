@@ -16,6 +16,8 @@ import { devRouter } from './routes/dev';
 import { devicesRouter } from './routes/devices';
 import { doorsRouter } from './routes/doors';
 import { healthRouter } from './routes/health';
+import { holdersRouter } from './routes/holders';
+import { keyIssuesRouter } from './routes/keyIssues';
 import { keySystemsRouter } from './routes/keySystems';
 import { profilesRouter } from './routes/profiles';
 import { syncRouter } from './routes/sync';
@@ -91,6 +93,8 @@ export function createApp({ db, config, mailer, smtp, log }: AppDeps): Express {
   api.use(completionsRouter(ctx));
   api.use(installsRouter(ctx));
   api.use(devicesRouter(ctx));
+  api.use(holdersRouter(ctx));
+  api.use(keyIssuesRouter(ctx));
   api.use(notFoundApi);
   app.use('/api', api);
 

@@ -68,4 +68,16 @@ export const mails = {
       text: `${o.technician} recorded a failed key check on core ${o.tag}${o.door ? ` (door ${o.door})` : ''}${o.number ? `, work order #${o.number} "${o.title}"` : ''}.\n${o.notes.length ? `\nWhat happened:\n${o.notes.map((n) => `- ${n}`).join('\n')}\n` : ''}\n${after} Completion log:\n${o.link}\n`,
     };
   },
+  keyDue(o: { holder: string; symbol: string; copy: number; due: string }): Omit<Mail, 'to'> {
+    return {
+      subject: `Key ${o.symbol} copy ${o.copy} is due back`,
+      text: `Hello ${o.holder},\n\nKey ${o.symbol}, copy ${o.copy}, issued to you, was due back on ${o.due}. Please return it to the key office, or tell them if you still need it.\n`,
+    };
+  },
+  keyRequest(o: { authoriser: string; number: number; holder: string; department: string; reason: string; symbol: string; doors: string[]; beyond: string[]; link: string }): Omit<Mail, 'to'> {
+    return {
+      subject: `Key request #${o.number}: ${o.holder} (${o.department})`,
+      text: `Hello ${o.authoriser},\n\n${o.holder} of ${o.department} asks for a key for: ${o.doors.join(', ')}.\nWhy: ${o.reason}\n\nProposed key: ${o.symbol}.${o.beyond.length ? ` It also opens: ${o.beyond.join(', ')}.` : ' It opens no other door.'}\n\nApprove or refuse here (the link works once, for 72 hours; no sign-in needed):\n${o.link}\n`,
+    };
+  },
 };

@@ -8,7 +8,7 @@ import type { Config } from '../config';
 import { mails, type KeyCheckOutcome, type Mailer } from './mail';
 import { getWorkOrder } from './workOrders';
 
-export type NotificationKind = 'key-check-failed' | 'work-order-done';
+export type NotificationKind = 'key-check-failed' | 'work-order-done' | 'key-due';
 
 interface Deps {
   db: Knex;
@@ -25,6 +25,12 @@ async function supervisorsFor(db: Knex, workOrderId: string | null): Promise<str
 }
 
 async function deliver({ db, mailer, config }: Deps, kind: NotificationKind, refId: string): Promise<void> {
+  if (kind === 'key-due') {
+    // Only symbol and copy number: a reminder never carries a bitting.
+    const i = await db('key_issues as i').join('key_holders as h', 'h.id', 'i.holder_id').join('keys as k', 'k.id', 'i.key_id').where('i.id', refId).first('i.status', 'i.copy_number', db.raw(`to_char(i.due_date, 'YYYY-MM-DD') as due`), 'h.name', 'h.email', 'k.symbol');
+    if (i?.status === 'out' && i.email) await mailer.send({ to: i.email, ...mails.keyDue({ holder: i.name, symbol: i.symbol, copy: i.copy_number, due: i.due }) });
+    return;
+  }
   if (kind === 'work-order-done') {
     const wo = await getWorkOrder(db, refId);
     for (const to of await supervisorsFor(db, wo.id)) await mailer.send({ to, ...mails.workOrderFinished({ number: wo.number, title: wo.title, cores: wo.coreCount, link: `${config.publicUrl}/completions?workOrderId=${wo.id}` }) });

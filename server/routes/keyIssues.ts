@@ -1,0 +1,51 @@
+/** Key copies issued, returned and chased; the cut list (bittings) for supervisors and admins, audited. */
+import { Router } from 'express';
+import { Id } from '../../shared/schemas/common';
+import { CutListQuery, KeyIssueInput, KeyIssueQuery, KeyReturnInput } from '../../shared/schemas/keyControl';
+import type { Ctx } from '../context';
+import { actorOf, allow } from '../middleware/auth';
+import { parse } from '../middleware/validate';
+import { audit } from '../services/audit';
+import { cutList, getIssue, issueKey, listIssues, outstandingKeys, returnKey } from '../services/keyIssues';
+
+const office = allow('supervisor', 'admin');
+
+export function keyIssuesRouter({ db, sealer }: Ctx): Router {
+  const r = Router();
+  r.get('/key-issues', office, async (req, res) => {
+    res.json({ issues: await listIssues(db, parse(KeyIssueQuery, req.query, 'The filter')) });
+  });
+  r.post('/key-issues', office, async (req, res) => {
+    const input = parse(KeyIssueInput, req.body, 'The key issue');
+    const id = await db.transaction(async (trx) => {
+      const created = await issueKey(trx, input, req.user!.id);
+      await audit(trx, actorOf(req), 'key.issued', { type: 'key-issue', id: created }, { signed: Boolean(input.acknowledgement.signature) });
+      return created;
+    });
+    res.status(201).json({ issue: await getIssue(db, id) });
+  });
+  /** Copies out past their due date or held by someone leaving or gone. */
+  r.get('/key-issues/outstanding', office, async (_req, res) => {
+    res.json({ issues: await outstandingKeys(db) });
+  });
+  r.get('/key-issues/cut-list', office, async (req, res) => {
+    const { issueIds } = parse(CutListQuery, req.query, 'The cut list');
+    const list = await cutList(db, sealer, issueIds);
+    await audit(db, actorOf(req), 'bittings.viewed', null, { what: 'cut-list', issues: issueIds.length, keys: list.length });
+    res.json({ cutList: list });
+  });
+  /** The receipt: symbol and copy number, never a bitting; with the drawn signature. */
+  r.get('/key-issues/:id', office, async (req, res) => {
+    res.json({ issue: await getIssue(db, parse(Id, req.params.id, 'The key issue id'), true) });
+  });
+  r.post('/key-issues/:id/return', office, async (req, res) => {
+    const id = parse(Id, req.params.id, 'The key issue id');
+    const input = parse(KeyReturnInput, req.body, 'The return');
+    await db.transaction(async (trx) => {
+      await returnKey(trx, id, req.user!.id);
+      await audit(trx, actorOf(req), 'key.returned', { type: 'key-issue', id }, input.note ? { note: input.note } : {});
+    });
+    res.json({ issue: await getIssue(db, id) });
+  });
+  return r;
+}

@@ -1,0 +1,159 @@
+/**
+ * Key copies issued one by one: holder, key symbol, copy number (the next of that key, never
+ * reused), who issued and who authorised it, the holder's acknowledgement; returns, the keys
+ * to chase, and the cut list (the only place here a bitting appears: restricted and audited).
+ */
+import type { Knex } from 'knex';
+import type { CutList, KeyIssue, KeyIssueInput, KeyIssueQuery, OutstandingKeys } from '../../shared/schemas/keyControl';
+import { badRequest, conflict, notFound } from '../errors';
+import { keyContext } from './keySystems';
+import type { Sealer } from './secrets';
+
+export function issueQuery(db: Knex) {
+  return db('key_issues as i')
+    .join('key_holders as h', 'h.id', 'i.holder_id')
+    .join('departments as d', 'd.id', 'h.department_id')
+    .join('keys as k', 'k.id', 'i.key_id')
+    .leftJoin('users as u', 'u.id', 'i.issued_by')
+    .leftJoin('key_requests as r', 'r.id', 'i.request_id')
+    .select(
+      'i.id',
+      'i.holder_id as holderId',
+      'h.name as holderName',
+      'h.status as holderStatus',
+      'd.name as department',
+      'i.key_id as keyId',
+      'k.symbol as keySymbol',
+      'k.key_system_id as keySystemId',
+      'i.copy_number as copyNumber',
+      'i.request_id as requestId',
+      'i.issued_at as issuedAt',
+      'u.name as issuedBy',
+      'r.decided_by_name as authorisedBy',
+      db.raw(`to_char(i.due_date, 'YYYY-MM-DD') as "dueDate"`),
+      'i.ack_name as ackName',
+      db.raw('(i.ack_signature is not null) as "signed"'),
+      'i.status',
+      'i.returned_at as returnedAt',
+      db.raw(`coalesce(i.status = 'out' and i.due_date < current_date, false) as overdue`),
+    );
+}
+
+interface IssueRow extends Omit<KeyIssue, 'acknowledgement' | 'issuedAt' | 'returnedAt'> {
+  holderStatus: 'active' | 'leaving' | 'left';
+  ackName: string;
+  signed: boolean;
+  issuedAt: Date;
+  returnedAt: Date | null;
+}
+
+export function issueOf(r: IssueRow): KeyIssue & { holderStatus: IssueRow['holderStatus'] } {
+  const { ackName, signed, ...rest } = r;
+  return { ...rest, issuedAt: new Date(r.issuedAt).toISOString(), returnedAt: r.returnedAt ? new Date(r.returnedAt).toISOString() : null, acknowledgement: { name: ackName, signed } };
+}
+
+const publicIssue = ({ holderStatus: _s, ...issue }: ReturnType<typeof issueOf>): KeyIssue => issue;
+
+export async function listIssues(db: Knex, f: KeyIssueQuery): Promise<KeyIssue[]> {
+  const q = issueQuery(db).orderBy([{ column: 'i.issued_at', order: 'desc' }, { column: 'k.symbol' }, { column: 'i.copy_number' }]);
+  if (f.holderId) q.where('i.holder_id', f.holderId);
+  if (f.keyId) q.where('i.key_id', f.keyId);
+  if (f.status) q.where('i.status', f.status);
+  return ((await q.limit(2000)) as IssueRow[]).map((r) => publicIssue(issueOf(r)));
+}
+
+export async function getIssue(db: Knex, id: string, withSignature = false): Promise<KeyIssue & { signature?: string | null }> {
+  const row = (await issueQuery(db).where('i.id', id).first()) as IssueRow | undefined;
+  if (!row) throw notFound('That key issue');
+  const issue = publicIssue(issueOf(row));
+  if (!withSignature) return issue;
+  const { ack_signature } = await db('key_issues').where({ id }).first('ack_signature');
+  return { ...issue, signature: ack_signature ?? null };
+}
+
+/** Copies of the holder still out: for someone leaving, every key to return. */
+export async function keysToReturn(db: Knex, holderId: string): Promise<KeyIssue[]> {
+  return listIssues(db, { holderId, status: 'out' });
+}
+
+const UNIQUE_VIOLATION = '23505';
+
+/**
+ * Issues one copy. The copy number is the key's highest so far plus one, taken in the insert
+ * itself; two parallel issues of one key collide on the unique (key_id, copy_number) index,
+ * and the loser tries again inside a savepoint, so both get a number and none is shared.
+ */
+export async function issueKey(db: Knex, input: KeyIssueInput, by: string): Promise<string> {
+  const holder = await db('key_holders').where({ id: input.holderId }).first('id', 'status', 'name');
+  if (!holder) throw badRequest('There is no key holder with that id.', [{ field: 'holderId', message: 'unknown holder' }]);
+  if (holder.status !== 'active') throw conflict(`${holder.name} is marked ${holder.status}: no new keys are issued to them.`, [{ field: 'holderId', message: `holder ${holder.status}` }]);
+  const key = await db('keys').where({ id: input.keyId }).first('id', 'status', 'symbol');
+  if (!key) throw badRequest('There is no key with that id.', [{ field: 'keyId', message: 'unknown key' }]);
+  if (key.status !== 'active') throw conflict(`Key ${key.symbol} is ${key.status}: no copies of it are issued.`, [{ field: 'keyId', message: `key ${key.status}` }]);
+  if (input.requestId) {
+    const request = await db('key_requests').where({ id: input.requestId }).first('holder_id', 'key_id', 'status', 'number');
+    if (!request) throw badRequest('There is no key request with that id.', [{ field: 'requestId', message: 'unknown request' }]);
+    if (request.status !== 'approved') throw conflict(`Request #${request.number} is ${request.status}, not approved.`, [{ field: 'requestId', message: `request ${request.status}` }]);
+    if (request.holder_id !== input.holderId || request.key_id !== input.keyId) throw badRequest(`Request #${request.number} is for another holder or key.`, [{ field: 'requestId', message: 'another holder or key' }]);
+  }
+  for (let attempt = 1; ; attempt++) {
+    try {
+      return await db.transaction(async (sp) => {
+        const rows = (await sp.raw(
+          `insert into key_issues (holder_id, key_id, copy_number, request_id, issued_by, due_date, ack_name, ack_signature)
+           select ?, ?, coalesce(max(copy_number), 0) + 1, ?, ?, ?, ?, ? from key_issues where key_id = ?
+           returning id`,
+          [input.holderId, input.keyId, input.requestId ?? null, by, input.dueDate ?? null, input.acknowledgement.name, input.acknowledgement.signature ?? null, input.keyId],
+        )).rows as { id: string }[];
+        return rows[0]!.id;
+      });
+    } catch (err) {
+      if ((err as { code?: string }).code !== UNIQUE_VIOLATION || attempt >= 20) throw err;
+    }
+  }
+}
+
+export async function returnKey(db: Knex, id: string, by: string): Promise<void> {
+  const issue = await db('key_issues').where({ id }).forUpdate().first('status');
+  if (!issue) throw notFound('That key issue');
+  if (issue.status !== 'out') throw conflict(`This copy is ${issue.status}, not out: there is nothing to return.`, [{ field: 'status', message: issue.status }]);
+  await db('key_issues').where({ id }).update({ status: 'returned', returned_at: db.fn.now(), returned_to: by });
+}
+
+/** Copies out past their due date, or held by someone leaving or gone. */
+export async function outstandingKeys(db: Knex): Promise<OutstandingKeys['issues']> {
+  const rows = (await issueQuery(db)
+    .where('i.status', 'out')
+    .where((w) => w.where('i.due_date', '<', db.raw('current_date')).orWhereIn('h.status', ['leaving', 'left']))
+    .orderBy([{ column: 'h.name' }, { column: 'k.symbol' }, { column: 'i.copy_number' }])) as IssueRow[];
+  return rows.map((r) => {
+    const issue = issueOf(r);
+    return { ...issue, reason: r.holderStatus === 'active' ? ('overdue' as const) : r.holderStatus };
+  });
+}
+
+/** Per key, the copies to cut with the bitting (restricted: the route allows and audits). */
+export async function cutList(db: Knex, sealer: Sealer, issueIds: string[]): Promise<CutList['cutList']> {
+  const rows = (await db('key_issues as i').join('keys as k', 'k.id', 'i.key_id').whereIn('i.id', issueIds).orderBy([{ column: 'k.symbol' }, { column: 'i.copy_number' }]).select('i.id', 'k.id as keyId', 'k.symbol', 'k.bitting_enc', 'i.copy_number')) as { id: string; keyId: string; symbol: string; bitting_enc: string; copy_number: number }[];
+  const missing = issueIds.filter((id) => !rows.some((r) => r.id === id));
+  if (missing.length) throw badRequest(`No key issue ${missing[0]}.`, [{ field: 'issueIds', message: `unknown issue ${missing[0]}` }]);
+  const byKey = new Map<string, CutList['cutList'][number]>();
+  for (const r of rows) {
+    const line = byKey.get(r.keyId) ?? { keyId: r.keyId, keySymbol: r.symbol, bitting: sealer.open(r.bitting_enc, keyContext(r.keyId)), copyNumbers: [], quantity: 0 };
+    line.copyNumbers.push(r.copy_number);
+    line.quantity++;
+    byKey.set(r.keyId, line);
+  }
+  return [...byKey.values()];
+}
+
+/** Queues one reminder per copy out and due (today or earlier) whose holder has an e-mail. */
+export async function queueDueReminders(db: Knex): Promise<number> {
+  const result = await db.raw(
+    `insert into notifications (kind, ref_id)
+     select 'key-due', i.id from key_issues i join key_holders h on h.id = i.holder_id
+     where i.status = 'out' and i.due_date <= current_date and h.email is not null
+     on conflict (kind, ref_id) do nothing`,
+  );
+  return (result as { rowCount: number }).rowCount;
+}
