@@ -13,6 +13,8 @@ export { formatBitting, parseBitting, readBitting } from './bitting';
 export type { BittingReading } from './bitting';
 export { pinCore } from './pinCore';
 export { buildUpSeam, controlDepthMask, keyOperates } from './keyOperates';
+export { keyExposure } from './keyExposure';
+export type { CoreExposure, ExposureCore, ExposureHow, ExposureInput, ExposureKey } from './keyExposure';
 export { maxProgressionWithoutLimit, progressKeys, progressionMethods } from './progressKeys';
 export type { ProgressOptions, ProgressionMethod } from './progressKeys';
 export { checkKeyPlacement, masterConstantChambers, placementChecker } from './placement';
