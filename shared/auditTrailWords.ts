@@ -58,6 +58,7 @@ export const actionWords: Record<string, string> = {
   'key.issued': 'Issued a key',
   'key.returned': 'Took back a key',
   'key.reported': 'Reported a key lost or stolen',
+  'key-report.work-order': 'Planned the rekey after a lost key',
   'key-request.created': 'Asked for a key',
   'key-request.decided': 'Decided a key request',
 };

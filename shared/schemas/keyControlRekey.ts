@@ -1,0 +1,46 @@
+/**
+ * The rekey plan after a lost or stolen key: for a change key, a new change key from the unused
+ * keys of its master's progression that passes the system audit, and the cores to re-pin; for a
+ * master, the choices with the cores to build and the keys to re-issue. Never a bitting.
+ */
+import { z } from 'zod';
+import { Id, IsoDate } from './common';
+import { KeySymbol } from './records';
+
+export const PlanCore = z.object({ coreId: Id, tag: z.string(), doorId: Id.nullable(), doorLabel: z.string().nullable() });
+export type PlanCore = z.infer<typeof PlanCore>;
+
+export const RekeyChoice = z.object({
+  option: z.enum(['new-change-key', 're-master', 'rekey-under-master']),
+  description: z.string(),
+  coresToBuild: z.number(),
+  keysToReissue: z.number(),
+});
+export type RekeyChoice = z.infer<typeof RekeyChoice>;
+
+export const RekeyPlan = z.object({
+  reportId: Id,
+  lostKey: z.object({ id: Id, symbol: z.string(), level: z.enum(['ggm', 'gm', 'master', 'change']) }),
+  /** For a change key: the symbol the new key would take; null when no unused key passes the audit. */
+  newKeySymbol: z.string().nullable(),
+  /** Unused keys of the progression that pass the system audit (the first is proposed). */
+  unusedKeysPassing: z.number(),
+  coresToRepin: z.array(PlanCore),
+  /** Cores the lost key turns only through master wafers: re-pinning them for the same keys does not shut it out. */
+  incidentalCores: z.array(PlanCore),
+  /** Copies out of the lost key (and, for a master, of the keys under it), to re-issue. */
+  copiesToReissue: z.array(z.object({ issueId: Id, holderId: Id, holderName: z.string(), keySymbol: z.string(), copyNumber: z.number() })),
+  choices: z.array(RekeyChoice),
+  workOrderId: Id.nullable(),
+});
+export type RekeyPlan = z.infer<typeof RekeyPlan>;
+export const RekeyPlanAnswer = z.object({ plan: RekeyPlan });
+export type RekeyPlanAnswer = z.infer<typeof RekeyPlanAnswer>;
+
+export const RekeyWorkOrderInput = z.strictObject({
+  assigneeId: Id.nullable().optional(),
+  dueDate: IsoDate.nullable().optional(),
+  /** The new key's symbol; the plan's suggestion when left out. */
+  newKeySymbol: KeySymbol.optional(),
+});
+export type RekeyWorkOrderInput = z.infer<typeof RekeyWorkOrderInput>;
