@@ -17,7 +17,9 @@ import { devicesRouter } from './routes/devices';
 import { doorsRouter } from './routes/doors';
 import { healthRouter } from './routes/health';
 import { holdersRouter } from './routes/holders';
+import { keyExposureRouter } from './routes/keyExposure';
 import { keyIssuesRouter } from './routes/keyIssues';
+import { keyRequestLinksRouter, keyRequestsRouter } from './routes/keyRequests';
 import { keySystemsRouter } from './routes/keySystems';
 import { profilesRouter } from './routes/profiles';
 import { syncRouter } from './routes/sync';
@@ -80,6 +82,8 @@ export function createApp({ db, config, mailer, smtp, log }: AppDeps): Express {
   // The development mailbox exists only when npm start runs the fake SMTP outside production; otherwise 404.
   if (smtp && config.env !== 'production') api.use(devRouter(smtp));
   else api.use('/dev', notFoundApi);
+  // The authoriser's mailed link needs no sign-in: the single-use token is the credential.
+  api.use(keyRequestLinksRouter(ctx));
   api.use(requireAuth(db, config));
   // Every router below states its roles with allow(...).
   api.use(usersRouter(ctx));
@@ -95,6 +99,8 @@ export function createApp({ db, config, mailer, smtp, log }: AppDeps): Express {
   api.use(devicesRouter(ctx));
   api.use(holdersRouter(ctx));
   api.use(keyIssuesRouter(ctx));
+  api.use(keyExposureRouter(ctx));
+  api.use(keyRequestsRouter(ctx));
   api.use(notFoundApi);
   app.use('/api', api);
 
