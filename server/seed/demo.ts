@@ -2,7 +2,8 @@
  * The invented demo scenario for `npm start`: "Quillon Hill College", a fictional campus
  * of three buildings and 60 doors on a three-level system (grand master A, masters AA..AD,
  * change keys progressed with the engine, a control key), two work orders waiting for the
- * demo technician, and a week of completion history. Local demo only: it refuses to run
+ * demo technician, a week of completion history, and key control (departments, holders,
+ * issued keys, one open lost-key report: demoKeyControl.ts). Local demo only: it refuses to run
  * with NODE_ENV=production, and the demo accounts share one published password.
  */
 import { randomUUID } from 'node:crypto';
@@ -13,6 +14,7 @@ import { controlContext, keyContext, loadSystem } from '../services/keySystems';
 import type { Sealer } from '../services/secrets';
 import { createWorkOrder } from '../services/workOrders';
 import { hashRecord } from '../services/canonical';
+import { seedKeyControl } from './demoKeyControl';
 
 export const DEMO_PASSWORD = 'corewright-demo';
 export const demoUsers = [
@@ -168,5 +170,7 @@ export async function seedDemo(db: Knex, sealer: Sealer): Promise<void> {
     const aster = await createWorkOrder(trx, sealer, { title: 'Aster Hall: second-floor labs', purpose: 'new-building', keySystemId: systemId, assigneeId: tech, dueDate: inDays(2), notes: 'Labs 207-212. Room 212 is a fire-rated stair door.', doors: doorsOf('AH-', 6, 6) }, lead);
     const cinder = await createWorkOrder(trx, sealer, { title: 'Cinder Works: lost-key rekey of the service rooms', purpose: 'lost-key-rekey', keySystemId: systemId, assigneeId: tech, dueDate: inDays(1), notes: 'A service-room key was reported lost. Return the removed cores to the shop.', doors: doorsOf('CW-SVC', 0, 3) }, lead);
     await trx('work_orders').whereIn('id', [aster.id, cinder.id]).update({ created_at: new Date(today.getTime() - 3 * 86400_000) });
+
+    await seedKeyControl(trx, sealer, systemId, lead);
   });
 }
