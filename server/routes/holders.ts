@@ -6,11 +6,11 @@ import type { Ctx } from '../context';
 import { badRequest } from '../errors';
 import { actorOf, allow } from '../middleware/auth';
 import { parse } from '../middleware/validate';
-import { audit } from '../services/audit';
+import { audit } from '../services/auditTrail';
 import { importHolders } from '../services/csvImport';
 import { keysToReturn } from '../services/keyIssues';
 import { createDepartment, createHolders, getDepartment, getHolder, listDepartments, listHolders, updateHolder } from '../services/keyHolders';
-import { upload } from './keySystems';
+import { upload } from '../middleware/upload';
 
 const office = allow('supervisor', 'admin');
 

@@ -9,7 +9,7 @@ import { KeyReportInput } from '../../shared/schemas/keyControlExposure';
 import type { Ctx } from '../context';
 import { actorOf, allow } from '../middleware/auth';
 import { parse } from '../middleware/validate';
-import { audit } from '../services/audit';
+import { audit } from '../services/auditTrail';
 import { controlExposureOf, doorAccess, holderAccess, keyExposureOf } from '../services/keyExposure';
 import { getReport, listReports, reportKey } from '../services/keyReports';
 import { planToWorkOrder, rekeyPlan } from '../services/rekeyPlans';

@@ -5,7 +5,7 @@ import { CutListQuery, KeyIssueInput, KeyIssueQuery, KeyReturnInput } from '../.
 import type { Ctx } from '../context';
 import { actorOf, allow } from '../middleware/auth';
 import { parse } from '../middleware/validate';
-import { audit } from '../services/audit';
+import { audit } from '../services/auditTrail';
 import { cutList, getIssue, issueKey, listIssues, outstandingKeys, returnKey } from '../services/keyIssues';
 
 const office = allow('supervisor', 'admin');

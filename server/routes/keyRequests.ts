@@ -9,7 +9,7 @@ import { KeyDecisionInput, KeyProposalInput, KeyRequestInput, LinkDecision, Link
 import type { Ctx } from '../context';
 import { actorOf, allow } from '../middleware/auth';
 import { parse } from '../middleware/validate';
-import { audit } from '../services/audit';
+import { audit } from '../services/auditTrail';
 import { mails } from '../services/mail';
 import { createRequest, decideByLink, decideInApp, getRequest, linkAnswer, listRequests, proposeKeys, viewByLink } from '../services/keyRequests';
 
