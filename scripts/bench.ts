@@ -24,6 +24,7 @@ if (want('engine')) {
   const r = spawnSync('npx', ['vitest', 'bench', '--run', '--project', 'bench', '--outputJson', 'benchmarks/vitest-bench.json'], { cwd: root, stdio: 'inherit' });
   if (r.status !== 0) throw new Error('the engine benchmark failed');
   results.engine = JSON.parse(readFileSync(path.join(root, 'benchmarks/keying-results.json'), 'utf8'));
+  results.exposure = JSON.parse(readFileSync(path.join(root, 'benchmarks/exposure-results.json'), 'utf8'));
 }
 
 /** A throw-away cluster with `processes` API server processes on it (default one); `run` gets their addresses. */
