@@ -87,7 +87,7 @@ describe('keyExposure equals keyOperates over pinCore (fast-check, brute force)'
       }),
       { numRuns: runs(200) },
     );
-  });
+  }, 60_000);
   test('every bitting of a small profile, with two-wafer seams (smallKit-style stock) included', () => {
     fc.assert(
       fc.property(system(smallProfile), fc.boolean(), ({ profile, input }, kit) => {
@@ -99,7 +99,7 @@ describe('keyExposure equals keyOperates over pinCore (fast-check, brute force)'
       }),
       { numRuns: runs(30) },
     );
-  });
+  }, 60_000);
   test('a profile edited in place is never read from stale masks (the chamber cache refreshes, and these masks with it)', () => {
     const p: Profile = { ...sfic7, wafers: [...sfic7.wafers] };
     const input: ExposureInput = { control: '2222222', keys: [{ id: 'a', bitting: '0000000' }], cores: [{ id: 'c', operating: ['a'] }] };
