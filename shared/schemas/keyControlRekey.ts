@@ -44,3 +44,6 @@ export const RekeyWorkOrderInput = z.strictObject({
   newKeySymbol: KeySymbol.optional(),
 });
 export type RekeyWorkOrderInput = z.infer<typeof RekeyWorkOrderInput>;
+
+export const RekeyWorkOrderDone = z.object({ workOrderId: Id, newKeyId: Id, newKeySymbol: z.string(), plan: RekeyPlan });
+export type RekeyWorkOrderDone = z.infer<typeof RekeyWorkOrderDone>;

@@ -17,6 +17,10 @@ import { ApiErrorBody } from '../../shared/schemas/errors';
 import { ImportResult } from '../../shared/schemas/imports';
 import { InstallMismatchList, InstallReview } from '../../shared/schemas/installs';
 import { KeyIds, KeyList, KeyOperatesList, KeyReplacement, KeySystemAnswer, KeySystemList } from '../../shared/schemas/keySystems';
+import { CutList, DepartmentAnswer, DepartmentList, HolderAnswer, HolderList, KeyIssueAnswer, KeyIssueList, OutstandingKeys } from '../../shared/schemas/keyControl';
+import { DoorAccess, ExposureAnswer, HolderAccess, KeyReportAnswer, KeyReportList } from '../../shared/schemas/keyControlExposure';
+import { RekeyPlanAnswer, RekeyWorkOrderDone } from '../../shared/schemas/keyControlRekey';
+import { KeyProposal, KeyRequestAnswer, KeyRequestList, LinkRequestAnswer } from '../../shared/schemas/keyControlRequests';
 import { ProfileAnswer, ProfileList } from '../../shared/schemas/profiles';
 import { ProgressionPreview } from '../../shared/schemas/records';
 import { SyncResponse } from '../../shared/schemas/sync';
@@ -37,6 +41,35 @@ const csv: Answer = { schema: 'csv' };
 /** `METHOD path` as registered in Express (server/routes/*.ts) → its answer. */
 export const answers: Record<string, Answer> = {
   'GET /api/health': json(Health, [503]),
+  'GET /api/departments': json(DepartmentList),
+  'POST /api/departments': json(DepartmentAnswer),
+  'GET /api/holders': json(HolderList),
+  'POST /api/holders': json(HolderAnswer.pick({ holder: true })),
+  'POST /api/holders/import': json(ImportResult, [422]),
+  'GET /api/holders/:id': json(HolderAnswer),
+  'PATCH /api/holders/:id': json(HolderAnswer),
+  'GET /api/holders/:id/access': json(HolderAccess),
+  'GET /api/key-issues': json(KeyIssueList),
+  'POST /api/key-issues': json(KeyIssueAnswer),
+  'GET /api/key-issues/outstanding': json(OutstandingKeys),
+  'GET /api/key-issues/cut-list': json(CutList),
+  'GET /api/key-issues/:id': json(KeyIssueAnswer),
+  'POST /api/key-issues/:id/return': json(KeyIssueAnswer),
+  'POST /api/key-issues/:id/report': json(KeyReportAnswer),
+  'GET /api/keys/:id/exposure': json(ExposureAnswer),
+  'GET /api/key-systems/:id/control-exposure': json(ExposureAnswer),
+  'GET /api/doors/:id/access': json(DoorAccess),
+  'GET /api/key-reports': json(KeyReportList),
+  'GET /api/key-reports/:id': json(KeyReportAnswer),
+  'GET /api/key-reports/:id/plan': json(RekeyPlanAnswer),
+  'POST /api/key-reports/:id/work-order': json(RekeyWorkOrderDone),
+  'POST /api/key-requests/proposal': json(KeyProposal),
+  'POST /api/key-requests': json(KeyRequestAnswer),
+  'GET /api/key-requests': json(KeyRequestList),
+  'GET /api/key-requests/:id': json(KeyRequestAnswer),
+  'POST /api/key-requests/:id/decision': json(KeyRequestAnswer),
+  'POST /api/key-request-links/view': json(LinkRequestAnswer),
+  'POST /api/key-request-links/decide': json(LinkRequestAnswer),
   'POST /api/auth/sign-in': json(SignInResponse),
   'POST /api/auth/refresh': json(SignInResponse),
   'POST /api/auth/set-password': json(PasswordSet),
