@@ -22,14 +22,15 @@ async function json(base: string, method: string, path: string, token?: string, 
   return { status: res.status, body: (await res.json().catch(() => null)) as never };
 }
 
-export async function signIn(base: string, email: string): Promise<string> {
-  const r = await json(base, 'POST', '/api/auth/sign-in', undefined, { email, password: 'corewright-demo' });
+/** Signs in; a tablet names its device (packets go only to a session with one). */
+export async function signIn(base: string, email: string, deviceId?: string): Promise<string> {
+  const r = await json(base, 'POST', '/api/auth/sign-in', undefined, { email, password: 'corewright-demo', ...(deviceId ? { deviceId } : {}) });
   if (r.status !== 200) throw new Error(`sign-in failed: ${r.status}`);
   return (r.body as { accessToken: string }).accessToken;
 }
 
 /** One technician per device, each with a work order of its own 10 doors, as on a real campus. */
-async function crews(base: string, db: Knex, count: number): Promise<{ token: string; cores: { wo: string; core: Packet['cores'][number] }[] }[]> {
+async function crews(base: string, db: Knex, count: number): Promise<{ token: string; deviceId: string; cores: { wo: string; core: Packet['cores'][number] }[] }[]> {
   const hash = (await db('users').where({ email: 'tech@demo.corewright.test' }).first('password_hash')).password_hash;
   const lead = await signIn(base, 'lead@demo.corewright.test');
   const system = await db('key_systems').first('id');
@@ -41,9 +42,10 @@ async function crews(base: string, db: Knex, count: number): Promise<{ token: st
     const mine = Array.from({ length: 10 }, (_, j) => doors[(i * 10 + j) % doors.length]!);
     const wo = await json(base, 'POST', '/api/work-orders', lead, { title: `Load crew ${i}`, purpose: 'maintenance', keySystemId: system.id, assigneeId: user.id, doors: mine.map((d) => ({ doorId: d.id, keyId: d.key_id })) });
     if (wo.status !== 201) throw new Error(`work order for crew ${i}: ${wo.status}`);
-    const token = await signIn(base, email);
+    const deviceId = randomUUID();
+    const token = await signIn(base, email, deviceId);
     const packet: Packet = ((await json(base, 'GET', `/api/work-orders/${(wo.body as { workOrder: { id: string } }).workOrder.id}/packet`, token)).body as { packet: Packet }).packet;
-    out.push({ token, cores: packet.cores.map((c) => ({ wo: packet.workOrder.id, core: c })) });
+    out.push({ token, deviceId, cores: packet.cores.map((c) => ({ wo: packet.workOrder.id, core: c })) });
   }
   return out;
 }
@@ -64,8 +66,7 @@ export async function syncLoad(bases: string[], db: Knex, opts: { clients: numbe
   const maxRequests = 20_000;
   let requests = 0;
   await Promise.all(
-    crewList.map(async ({ token, cores }, i) => {
-      const deviceId = randomUUID();
+    crewList.map(async ({ token, deviceId, cores }, i) => {
       while (Date.now() < until && requests < maxRequests) {
         requests++;
         const records = Array.from({ length: opts.batch }, (_, j) => {
