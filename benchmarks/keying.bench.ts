@@ -11,15 +11,15 @@ import { writeFileSync } from 'node:fs';
 import { cpus, loadavg } from 'node:os';
 import { bench, describe } from 'vitest';
 import { auditSystem, builtInProfiles, pinCore } from '../shared/keying';
-import type { AuditCore, AuditFinding, AuditInput, CoreKeys, Profile } from '../shared/keying';
-import { naiveAudit } from './naiveAudit';
+import type { SystemAuditCore, SystemAuditFinding, SystemAuditInput, CoreKeys, Profile } from '../shared/keying';
+import { naiveSystemAudit } from './naiveSystemAudit';
 import { generateSystem } from './systems';
 
 const profile = builtInProfiles['sfic-7'] as Profile;
 const system = generateSystem(2024, { cores: 5_000, keys: 20_000 });
 const keyById = new Map(system.keys.map((k) => [k.id, k.bitting]));
 const pinInputs: CoreKeys[] = Array.from({ length: 10_000 }, (_, j) => {
-  const core = system.cores[j % system.cores.length] as AuditCore;
+  const core = system.cores[j % system.cores.length] as SystemAuditCore;
   return { operating: core.operating.slice(0, 4).map((id) => keyById.get(id) ?? ''), control: system.control };
 });
 
@@ -50,14 +50,14 @@ const median = (xs: number[]): number => {
 };
 const fixed = (n: number, d = 1) => Number(n.toFixed(d));
 
-function countByCode(findings: AuditFinding[]): Record<string, number> {
+function countByCode(findings: SystemAuditFinding[]): Record<string, number> {
   const out: Record<string, number> = {};
   for (const f of findings) out[f.code] = (out[f.code] ?? 0) + 1;
   return out;
 }
 
 /** One audit of a generated system: median wall and CPU time of `runs`. */
-function auditOnce(input: AuditInput, runs: number): { wallMs: number; cpuMs: number; findings: number } {
+function auditOnce(input: SystemAuditInput, runs: number): { wallMs: number; cpuMs: number; findings: number } {
   auditSystem(profile, input); // warm-up
   let findings = 0;
   const t = timeRuns(runs, () => { findings = auditSystem(profile, input).length; });
@@ -72,11 +72,11 @@ function summarise(): void {
   const pinMs = median(pin.wallMs);
 
   auditSystem(profile, system);
-  let smart: AuditFinding[] = [];
+  let smart: SystemAuditFinding[] = [];
   const smartRuns = timeRuns(7, () => { smart = auditSystem(profile, system); });
-  let naive: AuditFinding[] = [];
+  let naive: SystemAuditFinding[] = [];
   // The baseline makes 10^8 key-core checks; one full-size run keeps the bench short.
-  const naiveRuns = timeRuns(1, () => { naive = naiveAudit(profile, system); });
+  const naiveRuns = timeRuns(1, () => { naive = naiveSystemAudit(profile, system); });
   const identical = JSON.stringify(smart) === JSON.stringify(naive);
   const smartMs = median(smartRuns.wallMs);
   const naiveMs = naiveRuns.wallMs[0] as number;

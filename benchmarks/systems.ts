@@ -6,7 +6,7 @@
  * position, the kind that open cores incidentally. Each core takes one change key with its
  * masters; every 25th is cross-keyed with a second change key of the same master.
  */
-import type { AuditCore, AuditInput, AuditKey } from '../shared/keying';
+import type { SystemAuditCore, SystemAuditInput, SystemAuditKey } from '../shared/keying';
 
 /** mulberry32: small, fast, seeded; enough for repeatable test data. */
 export function prng(seed: number): () => number {
@@ -31,7 +31,7 @@ export interface SystemShape {
   fullCapacity?: boolean;
 }
 
-export function generateSystem(seed: number, shape: SystemShape): AuditInput {
+export function generateSystem(seed: number, shape: SystemShape): SystemAuditInput {
   const rnd = prng(seed);
   const pick = <T>(list: readonly T[]): T => list[Math.floor(rnd() * list.length)] as T;
   const top = Array.from({ length: 7 }, () => Math.floor(rnd() * 10));
@@ -40,21 +40,21 @@ export function generateSystem(seed: number, shape: SystemShape): AuditInput {
   const control = top.map((t) => pick([1, 2, 3, 4, 5, 6, 7, 8, 9].filter((d) => d !== t))).join('');
   const controlCut = control;
 
-  const keys: AuditKey[] = [{ id: 'k-top', symbol: 'A', bitting: top.join(''), level: 'great-grand-master', opens: [] }];
-  const masters: { gm: AuditKey; m: AuditKey; changes: AuditKey[] }[] = [];
+  const keys: SystemAuditKey[] = [{ id: 'k-top', symbol: 'A', bitting: top.join(''), level: 'great-grand-master', opens: [] }];
+  const masters: { gm: SystemAuditKey; m: SystemAuditKey; changes: SystemAuditKey[] }[] = [];
   for (const [g, d1] of other(0, 4).entries()) {
     const gmDepths = [...top];
     gmDepths[0] = d1;
-    const gm: AuditKey = { id: `k-gm${g}`, symbol: `A${'ABCD'[g]}`, bitting: gmDepths.join(''), level: 'grand-master', opens: [] };
+    const gm: SystemAuditKey = { id: `k-gm${g}`, symbol: `A${'ABCD'[g]}`, bitting: gmDepths.join(''), level: 'grand-master', opens: [] };
     keys.push(gm);
     for (const [m, d2] of other(1, 4).entries()) {
       const mDepths = [...gmDepths];
       mDepths[1] = d2;
       const sym = `${gm.symbol}${'ABCD'[m]}`;
-      const mk: AuditKey = { id: `k-m${g}${m}`, symbol: sym, bitting: mDepths.join(''), level: 'master', opens: [] };
+      const mk: SystemAuditKey = { id: `k-m${g}${m}`, symbol: sym, bitting: mDepths.join(''), level: 'master', opens: [] };
       keys.push(mk);
       const choices = [2, 3, 4, 5, 6].map((i) => (shape.fullCapacity ? parity(i) : parity(i).filter((d) => d !== mDepths[i])));
-      const changes: AuditKey[] = [];
+      const changes: SystemAuditKey[] = [];
       const counter = [0, 0, 0, 0, 0];
       for (;;) {
         const depths = [...mDepths];
@@ -78,7 +78,7 @@ export function generateSystem(seed: number, shape: SystemShape): AuditInput {
     keys.push({ id: `k-spare-${s}`, symbol: `SP${s + 1}`, bitting: base.join(''), level: 'change', opens: [] });
   }
 
-  const cores: AuditCore[] = [];
+  const cores: SystemAuditCore[] = [];
   for (let j = 0; j < shape.cores; j++) {
     const group = masters[j % masters.length]!;
     const row = Math.floor(j / masters.length) % group.changes.length;

@@ -1,4 +1,4 @@
-import { Router } from 'express';
+import { Router, type Request, type Response } from 'express';
 import { z } from 'zod';
 import { auditSystem } from '../../shared/keying';
 import { Id, Notes } from '../../shared/schemas/common';
@@ -9,25 +9,31 @@ import { actorOf, allow } from '../middleware/auth';
 import { upload } from '../middleware/upload';
 import { parse } from '../middleware/validate';
 import { audit } from '../services/auditTrail';
-import { acknowledge, withAcknowledgements } from '../services/auditAcknowledgements';
+import { acknowledge, withAcknowledgements } from '../services/systemAuditAcknowledgements';
 import { importKeys } from '../services/csvImport';
 import { coresOperatedBy } from '../services/keyDoors';
 import { addKeys, replaceKey, createSystem, getSystem, listKeys, listSystems, loadSystem, updateKey, updateSystem } from '../services/keySystems';
 import { previewProgression } from '../services/progression';
-import { auditInputFor } from '../services/systemAudit';
+import { systemAuditInputFor } from '../services/systemAudit';
 
 const IdParam = z.object({ id: Id });
 const Reveal = z.object({ reveal: z.enum(['0', '1']).optional() });
 const Acknowledge = z.strictObject({
-  fingerprint: z.string().regex(/^[0-9a-f]{64}$/, { error: 'the fingerprint of a finding from this key system’s audit (64 hex digits)' }),
+  fingerprint: z.string().regex(/^[0-9a-f]{64}$/, { error: 'the fingerprint of a finding from this key system’s system audit (64 hex digits)' }),
   note: Notes(500, 'the note').pipe(z.string().min(3, { error: 'write why the finding is accepted (3 to 500 characters)' })),
 });
 
+/** `/api/key-systems/:id/audit[/...]` → `/api/key-systems/:id/system-audit[/...]`, the query kept. */
+function movedToSystemAudit(req: Request, res: Response): void {
+  parse(IdParam, req.params);
+  res.redirect(308, req.originalUrl.replace(/^(\/api\/key-systems\/[^/?]+)\/audit(?=[/?]|$)/, '$1/system-audit'));
+}
+
 export function keySystemsRouter({ db, sealer, config }: Ctx): Router {
   const r = Router();
-  /** The audit as the console shows it: each finding with its fingerprint and any acknowledgement. */
-  async function currentAudit(id: string) {
-    const input = await auditInputFor(db, sealer, id);
+  /** The system audit as the console shows it: each finding with its fingerprint and any acknowledgement. */
+  async function currentSystemAudit(id: string) {
+    const input = await systemAuditInputFor(db, sealer, id);
     const findings = await withAcknowledgements(db, id, config.dataKey, input.audit, auditSystem(input.profile, input.audit));
     return { findings, keys: input.audit.keys.length, cores: input.audit.cores.length };
   }
@@ -132,25 +138,25 @@ export function keySystemsRouter({ db, sealer, config }: Ctx): Router {
     res.status(result.errors.length ? 422 : 200).json(result);
   });
 
-  r.get('/key-systems/:id/audit', allow('supervisor', 'admin'), async (req, res) => {
+  r.get('/key-systems/:id/system-audit', allow('supervisor', 'admin'), async (req, res) => {
     const { id } = parse(IdParam, req.params);
-    const result = await currentAudit(id);
+    const result = await currentSystemAudit(id);
     const acknowledged = result.findings.filter((f) => f.acknowledged).length;
     await audit(db, actorOf(req), 'key-system.audited', { type: 'key-system', id }, { findings: result.findings.length, acknowledged });
     res.json(result);
   });
 
-  /** An administrator accepts a warning or a note of the audit, with a note; it stays accepted until its keys change. */
-  r.post('/key-systems/:id/audit/acknowledgements', allow('admin'), async (req, res) => {
+  /** An administrator accepts a warning or a note of the system audit, with a note; it stays accepted until its keys change. */
+  r.post('/key-systems/:id/system-audit/acknowledgements', allow('admin'), async (req, res) => {
     const { id } = parse(IdParam, req.params);
     const input = parse(Acknowledge, req.body, 'The acknowledgement');
-    const { findings } = await currentAudit(id);
+    const { findings } = await currentSystemAudit(id);
     const finding = findings.find((f) => f.fingerprint === input.fingerprint);
     if (!finding) {
-      throw badRequest('No finding of this key system’s current audit has that fingerprint: the keys it involves may have changed since. Run the audit again and acknowledge the finding it shows.', [{ field: 'fingerprint', message: 'not a finding of the current audit' }]);
+      throw badRequest('No finding of this key system’s current system audit has that fingerprint: the keys it involves may have changed since. Run the system audit again and acknowledge the finding it shows.', [{ field: 'fingerprint', message: 'not a finding of the current system audit' }]);
     }
     if (finding.severity === 'error') {
-      throw badRequest('Errors cannot be acknowledged: fix what the finding names (its advice says how), then audit again.', [{ field: 'fingerprint', message: 'the finding is an error' }]);
+      throw badRequest('Errors cannot be acknowledged: fix what the finding names (its advice says how), then run the system audit again.', [{ field: 'fingerprint', message: 'the finding is an error' }]);
     }
     const user = req.user!;
     const acknowledgement = await db.transaction(async (trx) => {
@@ -160,5 +166,10 @@ export function keySystemsRouter({ db, sealer, config }: Ctx): Router {
     });
     res.status(201).json({ fingerprint: finding.fingerprint, acknowledgement });
   });
+
+  // The system audit's old paths (before it was named apart from the audit trail): a 308 keeps the method and
+  // body, so an older client's GET and POST land on the new route, which checks the roles as before.
+  r.get('/key-systems/:id/audit', movedToSystemAudit);
+  r.post('/key-systems/:id/audit/acknowledgements', movedToSystemAudit);
   return r;
 }

@@ -6,7 +6,7 @@
 import { parse as parseCsv } from 'csv-parse/sync';
 import type { Knex } from 'knex';
 import { auditSystem, placementChecker, readBitting } from '../../shared/keying';
-import { auditInputFor } from './systemAudit';
+import { systemAuditInputFor } from './systemAudit';
 import { textProblem } from '../../shared/schemas/common';
 import { DOOR_COLUMNS, HOLDER_COLUMNS, KEY_COLUMNS, LEVEL_WORDS } from '../../shared/csvTemplates';
 import { DoorInput, KeyInput, KeyLevel } from '../../shared/schemas/records';
@@ -94,7 +94,7 @@ const levelWords: Record<string, KeyLevel> = LEVEL_WORDS;
  * error (cross-keying can be meant), but the administrator sees it before committing.
  */
 async function incidentalAccess(db: Knex, sealer: Sealer, systemId: string, keys: { symbol: string; bitting: string }[], records: CsvRow[]): Promise<RowError[]> {
-  const { profile, audit } = await auditInputFor(db, sealer, systemId);
+  const { profile, audit } = await systemAuditInputFor(db, sealer, systemId);
   const fresh = keys.map((k, i) => ({ id: `import:${i}`, symbol: k.symbol, bitting: k.bitting, level: undefined, opens: [] as string[] }));
   const findings = auditSystem(profile, { ...audit, keys: [...audit.keys, ...fresh.map(({ level: _l, ...k }) => k)] });
   const out: RowError[] = [];

@@ -6,12 +6,12 @@
  */
 import type { Knex } from 'knex';
 import type { z } from 'zod';
-import { auditSystem, KeyingError, progressKeys, type AuditFinding } from '../../shared/keying';
+import { auditSystem, KeyingError, progressKeys, type SystemAuditFinding } from '../../shared/keying';
 import type { HeldKey, ProgressedKey, ProgressionInput } from '../../shared/schemas/records';
 import { badRequest } from '../errors';
 import { loadSystem, placementSystemOf, type LoadedSystem, type SystemKey } from './keySystems';
 import type { Sealer } from './secrets';
-import { auditInputFor } from './systemAudit';
+import { systemAuditInputFor } from './systemAudit';
 
 type Progression = z.output<typeof ProgressionInput>;
 
@@ -29,10 +29,10 @@ function progressed(system: LoadedSystem, parent: SystemKey, input: Progression)
 }
 
 /** The audit's errors for each proposed key, by its place in the list. */
-async function auditErrors(db: Knex, sealer: Sealer, systemId: string, bittings: string[]): Promise<Map<number, AuditFinding[]>> {
-  const { profile, audit: current } = await auditInputFor(db, sealer, systemId);
+async function auditErrors(db: Knex, sealer: Sealer, systemId: string, bittings: string[]): Promise<Map<number, SystemAuditFinding[]>> {
+  const { profile, audit: current } = await systemAuditInputFor(db, sealer, systemId);
   const fresh = bittings.map((bitting, i) => ({ id: `proposed:${i}`, symbol: `(new ${i + 1})`, bitting, level: 'change' as const, opens: [] as string[] }));
-  const reasons = new Map<number, AuditFinding[]>();
+  const reasons = new Map<number, SystemAuditFinding[]>();
   for (const f of auditSystem(profile, { ...current, keys: [...current.keys, ...fresh] })) {
     if (f.severity !== 'error') continue;
     for (const keyId of f.keyIds ?? []) {

@@ -12,7 +12,7 @@ import { conflict, notFound } from '../errors';
 import { exposedCores, installedCores } from './keyExposure';
 import { loadSystem, placementSystemOf, replaceKey, type LoadedSystem, type SystemKey } from './keySystems';
 import type { Sealer } from './secrets';
-import { auditInputFor } from './systemAudit';
+import { systemAuditInputFor } from './systemAudit';
 import { createWorkOrder } from './workOrders';
 
 /** Unused change keys under `parent` that pass the system audit, in progression order. */
@@ -30,7 +30,7 @@ async function unusedKeys(db: Knex, sealer: Sealer, system: LoadedSystem, parent
   }
   const taken = new Set(system.keys.map((k) => k.bitting));
   const fresh = bittings.filter((b) => !taken.has(b)).slice(0, 200);
-  const { profile, audit } = await auditInputFor(db, sealer, system.id);
+  const { profile, audit } = await systemAuditInputFor(db, sealer, system.id);
   const proposed = fresh.map((bitting, i) => ({ id: `proposed:${i}`, symbol: `(new ${i + 1})`, bitting, level: 'change' as const, opens: [] as string[] }));
   const failing = new Set<number>();
   for (const f of auditSystem(profile, { ...audit, keys: [...audit.keys, ...proposed] })) {

@@ -1,6 +1,6 @@
 /** Builds the engine's audit input from what is stored: keys, their intended cores, the control key. */
 import type { Knex } from 'knex';
-import type { AuditInput, KeyLevel as EngineLevel, Profile } from '../../shared/keying';
+import type { SystemAuditInput, KeyLevel as EngineLevel, Profile } from '../../shared/keying';
 import type { KeyLevel } from '../../shared/schemas/records';
 import { compareSymbols } from '../../shared/keyLevels';
 import { loadSystem } from './keySystems';
@@ -8,7 +8,7 @@ import type { Sealer } from './secrets';
 
 const levelFor: Record<KeyLevel, EngineLevel> = { ggm: 'great-grand-master', gm: 'grand-master', master: 'master', change: 'change' };
 
-export async function auditInputFor(db: Knex, sealer: Sealer, systemId: string): Promise<{ profile: Profile; audit: AuditInput }> {
+export async function systemAuditInputFor(db: Knex, sealer: Sealer, systemId: string): Promise<{ profile: Profile; audit: SystemAuditInput }> {
   const system = await loadSystem(db, sealer, systemId);
   const cores = await db('cores as c').leftJoin('doors as d', 'd.id', 'c.door_id').where('c.key_system_id', systemId).whereNot('c.state', 'retired').select('c.id', 'c.tag', 'd.label');
   const links = await db('core_keys as ck').join('cores as c', 'c.id', 'ck.core_id').where('c.key_system_id', systemId).whereNot('c.state', 'retired').select('ck.core_id', 'ck.key_id');

@@ -47,7 +47,7 @@ export const keyingIssueCodes = {
 
 export type KeyingIssueCode = keyof typeof keyingIssueCodes;
 
-export const auditFindingCodes = {
+export const systemAuditFindingCodes = {
   'bad-bitting': { severity: 'error', meaning: 'A key’s bitting cannot be read; the key is left out of the other checks.' },
   'unknown-key': { severity: 'error', meaning: 'A core lists a key that is not in the system.' },
   'unknown-core': { severity: 'error', meaning: 'A key lists a core that is not in the system.' },
@@ -69,4 +69,4 @@ export const auditFindingCodes = {
   'rights-amplification': { severity: 'info', meaning: 'How far one change key and its core expose the top master.' },
 } as const satisfies Record<string, { severity: 'error' | 'warning' | 'info'; meaning: string }>;
 
-export type AuditFindingCode = keyof typeof auditFindingCodes;
+export type SystemAuditFindingCode = keyof typeof systemAuditFindingCodes;

@@ -3,8 +3,8 @@
  * Pure TypeScript so the tablet computes offline exactly what the server computes.
  */
 export type { ChamberPinning, CoreKeys, CorePinning, PinningIssue, Profile, Severity } from './types';
-export { auditFindingCodes, keyingIssueCodes } from './codes';
-export type { AuditFindingCode, KeyingIssueCode } from './codes';
+export { systemAuditFindingCodes, keyingIssueCodes } from './codes';
+export type { SystemAuditFindingCode, KeyingIssueCode } from './codes';
 export { KeyingError, hasErrors } from './errors';
 export { builtInProfiles, chambersBackToFront } from './profiles';
 export { validateProfile } from './validateProfile';
@@ -21,4 +21,4 @@ export { checkKeyPlacement, masterConstantChambers, placementChecker } from './p
 export type { KeyPlacement, PlacedKey, PlacementCheck, PlacementProblem, PlacementSystem } from './placement';
 export { partKinds, trayFor } from './tray';
 export type { PartCounts, PartKind, SizeCount, Tray, TrayChamber, TwoWaferBuildUp } from './tray';
-export * from './audit';
+export * from './systemAudit';

@@ -3,12 +3,12 @@
  * each with its fingerprint and, where an administrator accepted it, the acknowledgement.
  */
 import { z } from 'zod';
-import { auditFindingCodes } from '../keying';
+import { systemAuditFindingCodes } from '../keying';
 
-const codes = Object.keys(auditFindingCodes) as [keyof typeof auditFindingCodes, ...(keyof typeof auditFindingCodes)[]];
+const codes = Object.keys(systemAuditFindingCodes) as [keyof typeof systemAuditFindingCodes, ...(keyof typeof systemAuditFindingCodes)[]];
 export const Acknowledgement = z.object({ note: z.string(), by: z.string(), at: z.string() });
 export type Acknowledgement = z.infer<typeof Acknowledgement>;
-export const SystemAuditFinding = z.object({
+export const SystemAuditReportFinding = z.object({
   code: z.enum(codes),
   severity: z.enum(['error', 'warning', 'info']),
   message: z.string(),
@@ -22,8 +22,8 @@ export const SystemAuditFinding = z.object({
   fingerprint: z.string(),
   acknowledged: Acknowledgement.nullable(),
 });
-export type SystemAuditFinding = z.infer<typeof SystemAuditFinding>;
-export const SystemAudit = z.object({ findings: z.array(SystemAuditFinding), keys: z.number(), cores: z.number() });
+export type SystemAuditReportFinding = z.infer<typeof SystemAuditReportFinding>;
+export const SystemAudit = z.object({ findings: z.array(SystemAuditReportFinding), keys: z.number(), cores: z.number() });
 export type SystemAudit = z.infer<typeof SystemAudit>;
 /** A finding an administrator accepted, with the note. */
 export const FindingAcknowledged = z.object({ fingerprint: z.string(), acknowledgement: Acknowledgement });

@@ -10,7 +10,7 @@ const reveal = (yes: boolean) => (yes ? '?reveal=1' : '');
 
 export type { HeldKey, ProgressedKey, ProgressionInput } from '@shared/schemas/records';
 export type { KeyReplacement as ReplaceResult } from '@shared/schemas/keySystems';
-export type { SystemAudit, SystemAuditFinding as AuditFinding } from '@shared/schemas/systemAudit';
+export type { SystemAudit, SystemAuditReportFinding } from '@shared/schemas/systemAudit';
 
 export const listKeySystems = async () => (await request('GET', '/api/key-systems', { schema: KeySystemList })).keySystems;
 export const createKeySystem = async (input: KeySystemCreate) => (await request('POST', '/api/key-systems', { body: input, schema: KeySystemAnswer })).keySystem;
@@ -23,10 +23,10 @@ export const updateKey = (id: string, keyId: string, patch: KeyUpdate) => reques
 export const previewProgression = (id: string, input: ProgressionInput) =>
   request('POST', `/api/key-systems/${id}/progression`, { body: input, schema: ProgressionPreview });
 export const importKeys = (id: string, file: File, commit: boolean) => uploadCsv(`/api/key-systems/${id}/import`, file, commit);
-export const auditKeySystem = (id: string) => request('GET', `/api/key-systems/${id}/audit`, { schema: SystemAudit });
+export const getSystemAudit = (id: string) => request('GET', `/api/key-systems/${id}/system-audit`, { schema: SystemAudit });
 /** Administrators only; the server audits it. */
 export const acknowledgeFinding = (id: string, fingerprint: string, note: string) =>
-  request('POST', `/api/key-systems/${id}/audit/acknowledgements`, { body: { fingerprint, note }, schema: FindingAcknowledged });
+  request('POST', `/api/key-systems/${id}/system-audit/acknowledgements`, { body: { fingerprint, note }, schema: FindingAcknowledged });
 
 /** The cores a key turns, intended or incidental (the engine's keyOperates); no bitting in the answer. */
 export const keyOperates = async (id: string, keyId: string) => (await request('GET', `/api/key-systems/${id}/keys/${keyId}/operates`, { schema: KeyOperatesList })).cores;

@@ -6,7 +6,7 @@
 import { afterAll, beforeAll, describe, expect, test } from 'vitest';
 import { auditSystem } from '../../shared/keying';
 import { loadSystem, type LoadedSystem } from '../../server/services/keySystems';
-import { auditInputFor } from '../../server/services/systemAudit';
+import { systemAuditInputFor } from '../../server/services/systemAudit';
 import { startHarness, type Harness } from './harness';
 
 let h: Harness;
@@ -65,7 +65,7 @@ describe('the plan for a lost change key', () => {
     const fresh = after.keys.find((k) => k.symbol === res.json.newKeySymbol)!;
     expect(fresh.parentId).toBe(keyId.get('AB'));
     // The engine's system audit over the system as it now stands: no error names the new key.
-    const { profile, audit } = await auditInputFor(h.db, h.sealer, system.id);
+    const { profile, audit } = await systemAuditInputFor(h.db, h.sealer, system.id);
     expect(auditSystem(profile, audit).filter((f) => f.severity === 'error' && (f.keyIds ?? []).includes(fresh.id))).toEqual([]);
     expect((await h.call('POST', `/api/key-reports/${reportId}/work-order`, { token: lead, body: {} })).status).toBe(409);
   });

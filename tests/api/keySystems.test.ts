@@ -124,7 +124,7 @@ describe('GET /api/key-systems and /api/key-systems/:id', () => {
     ['GET', '/api/key-systems/{id}'],
     ['GET', '/api/key-systems/{id}?reveal=1'],
     ['GET', '/api/key-systems/{id}/keys?reveal=1'],
-    ['GET', '/api/key-systems/{id}/audit'],
+    ['GET', '/api/key-systems/{id}/system-audit'],
   ])('a technician gets 403 on %s %s, with no bitting and no audit of a view (A-3, ASVS 5 V8)', async (method, path) => {
     const res = await h.call(method, path.replace('{id}', demoId), { token: tech });
     expect(res.status).toBe(403);
@@ -545,9 +545,9 @@ describe('POST /api/key-systems/:id/progression: a preview, nothing saved', () =
   });
 });
 
-describe('GET /api/key-systems/:id/audit', () => {
+describe('GET /api/key-systems/:id/system-audit', () => {
   test("the demo system's audit has the rights-amplification information finding (M. Blaze, IEEE S&P 2003)", async () => {
-    const res = await h.call('GET', `/api/key-systems/${demoId}/audit`, { token: lead });
+    const res = await h.call('GET', `/api/key-systems/${demoId}/system-audit`, { token: lead });
     expect(res.status).toBe(200);
     expect(res.json).toMatchObject({ keys: 85, cores: 23 });
     const ra = res.json.findings.find((f: { code: string }) => f.code === 'rights-amplification');

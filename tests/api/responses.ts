@@ -28,15 +28,16 @@ import { FindingAcknowledged, SystemAudit } from '../../shared/schemas/systemAud
 import { AdminUserAnswer, AdminUserList, TechnicianList } from '../../shared/schemas/users';
 import { PacketAnswer, PinningPreview, WorkOrderAnswer, WorkOrderDetail, WorkOrderDoorsAdded, WorkOrderList } from '../../shared/schemas/workOrders';
 
-/** What a route answers on success: a JSON schema, CSV text, or no body (204). */
+/** What a route answers on success: a JSON schema, CSV text, no body (204), or a redirect elsewhere (308). */
 export interface Answer {
-  schema: z.ZodType | 'csv' | 'empty';
+  schema: z.ZodType | 'csv' | 'empty' | 'moved';
   /** Statuses of 400 and above that still answer with the route's own schema (health's 503, an import's 422). */
   alsoFor?: number[];
 }
 
 const json = (schema: z.ZodType, alsoFor?: number[]): Answer => ({ schema, ...(alsoFor ? { alsoFor } : {}) });
 const csv: Answer = { schema: 'csv' };
+const moved: Answer = { schema: 'moved' };
 
 /** `METHOD path` as registered in Express (server/routes/*.ts) → its answer. */
 export const answers: Record<string, Answer> = {
@@ -97,8 +98,11 @@ export const answers: Record<string, Answer> = {
   'POST /api/key-systems/:id/keys/:keyId/replace': json(KeyReplacement),
   'POST /api/key-systems/:id/progression': json(ProgressionPreview),
   'POST /api/key-systems/:id/import': json(ImportResult, [422]),
-  'GET /api/key-systems/:id/audit': json(SystemAudit),
-  'POST /api/key-systems/:id/audit/acknowledgements': json(FindingAcknowledged),
+  'GET /api/key-systems/:id/system-audit': json(SystemAudit),
+  'POST /api/key-systems/:id/system-audit/acknowledgements': json(FindingAcknowledged),
+  // The system audit's old paths: a 308 to the new ones (a redirect carries no body to check).
+  'GET /api/key-systems/:id/audit': moved,
+  'POST /api/key-systems/:id/audit/acknowledgements': moved,
   'GET /api/doors': json(DoorList),
   'POST /api/doors': json(DoorAnswer),
   'POST /api/doors/import': json(ImportResult, [422]),
@@ -157,6 +161,7 @@ export function checkAnswer(method: string, path: string, reply: { status: numbe
     if (reply.status < 400) throw new AnswerDrift(`${where}, but tests/api/responses.ts has no schema for this route: add one (a schema of shared/schemas).`);
     return parsed(ApiErrorBody, reply.json, where);
   }
+  if (answer.schema === 'moved') throw new AnswerDrift(`${where}; this route only redirects (308).`);
   if (answer.schema === 'empty') {
     if (reply.text !== '') throw new AnswerDrift(`${where} with a body; this route answers 204 with none.`);
   } else if (answer.schema === 'csv') {

@@ -61,6 +61,9 @@ const matrix: Entry[] = [
   { method: 'POST', route: '/api/key-systems/:id/keys/:keyId/replace', path: '/api/key-systems/{ks}/keys/{key}/replace', allow: ADM, ok: 400, body: {} },
   { method: 'POST', route: '/api/key-systems/:id/progression', path: '/api/key-systems/{ks}/progression', allow: ADM, ok: 400, body: {} },
   { method: 'POST', route: '/api/key-systems/:id/import', path: '/api/key-systems/{ks}/import', allow: ADM, ok: 400, body: {} },
+  { method: 'GET', route: '/api/key-systems/:id/system-audit', path: '/api/key-systems/{ks}/system-audit', allow: SUP, ok: 200 },
+  { method: 'POST', route: '/api/key-systems/:id/system-audit/acknowledgements', path: '/api/key-systems/{ks}/system-audit/acknowledgements', allow: ADM, ok: 400, body: {} },
+  // The old paths answer 308 to the new ones (followed here, so the new route's roles decide; see systemAuditRedirect.test.ts).
   { method: 'GET', route: '/api/key-systems/:id/audit', path: '/api/key-systems/{ks}/audit', allow: SUP, ok: 200 },
   { method: 'POST', route: '/api/key-systems/:id/audit/acknowledgements', path: '/api/key-systems/{ks}/audit/acknowledgements', allow: ADM, ok: 400, body: {} },
   { method: 'GET', route: '/api/doors', path: '/api/doors', allow: SUP, ok: 200 },

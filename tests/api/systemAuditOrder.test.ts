@@ -15,7 +15,7 @@ const naturallySorted = (list: string[]) => list.every((s, i) => i === 0 || comp
 test('the demo campus audit lists its keys naturally: AA2 before AA10 (common practice: natural sort order)', async () => {
   const token = await h.tokenFor('supervisor');
   const demoId = (await h.db('key_systems').where({ name: 'Quillon Hill College' }).first('id')).id;
-  const res = await h.call('GET', `/api/key-systems/${demoId}/audit`, { token });
+  const res = await h.call('GET', `/api/key-systems/${demoId}/system-audit`, { token });
   expect(res.status).toBe(200);
   const findings = res.json.findings as { code: string; keys?: string[]; details?: string[] }[];
   const apart = findings.find((f) => f.code === 'change-keys-one-apart')!;

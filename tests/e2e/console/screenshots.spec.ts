@@ -96,9 +96,9 @@ test('screenshots of each console page', async ({ page }) => {
   await expect(page.getByTestId('prog-list')).toBeVisible();
   await page.getByTestId('prog-list').scrollIntoViewIfNeeded();
   await shot(page, 'key-system-progression');
-  await page.getByTestId('tab-audit').click();
-  await expect(page.getByTestId('audit-report')).toBeVisible();
-  await shot(page, 'key-system-audit');
+  await page.getByTestId('tab-system-audit').click();
+  await expect(page.getByTestId('system-audit-report')).toBeVisible();
+  await shot(page, 'key-system-audit-report');
 
   await page.goto('/profiles');
   await expect(page.getByTestId('profile-table').locator('tbody tr').first()).toBeVisible();

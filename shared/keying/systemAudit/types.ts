@@ -1,9 +1,9 @@
-import type { AuditFindingCode } from '../codes';
+import type { SystemAuditFindingCode } from '../codes';
 
 /** Where a key sits in the hierarchy, top down. */
 export type KeyLevel = 'great-grand-master' | 'grand-master' | 'master' | 'change';
 
-export interface AuditKey {
+export interface SystemAuditKey {
   id: string;
   /** The key symbol stamped on the key (user-typed; never used to derive a bitting). */
   symbol: string;
@@ -17,7 +17,7 @@ export interface AuditKey {
   opens: string[];
 }
 
-export interface AuditCore {
+export interface SystemAuditCore {
   id: string;
   /** Door or core name shown in messages; the id is used when left out. */
   label?: string;
@@ -25,9 +25,9 @@ export interface AuditCore {
   operating: string[];
 }
 
-export interface AuditInput {
-  keys: AuditKey[];
-  cores: AuditCore[];
+export interface SystemAuditInput {
+  keys: SystemAuditKey[];
+  cores: SystemAuditCore[];
   control: string;
   /** Id of the top master; when left out, the highest-level key meant to operate the most cores. */
   topMaster?: string;
@@ -37,8 +37,8 @@ export interface AuditInput {
 
 export type FindingSeverity = 'error' | 'warning' | 'info';
 
-export interface AuditFinding {
-  code: AuditFindingCode;
+export interface SystemAuditFinding {
+  code: SystemAuditFindingCode;
   severity: FindingSeverity;
   message: string;
   /** What to change, in shop words. */

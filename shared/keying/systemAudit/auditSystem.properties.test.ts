@@ -6,7 +6,7 @@ import { pinCore } from '../pinCore';
 import { runs, smallKit, smallProfile, usualProfile } from '../testing/arbitraries';
 import type { Profile } from '../types';
 import { auditSystem } from './auditSystem';
-import type { AuditInput, KeyLevel } from './types';
+import type { SystemAuditInput, KeyLevel } from './types';
 
 /*
  * fast-check builds random systems (keys from a few depths so that incidental access,
@@ -14,7 +14,7 @@ import type { AuditInput, KeyLevel } from './types';
  * from the records alone (not with another finder over the same context), and with
  * keyOperates on charts pinned afresh.
  */
-function systemArb(profile: Profile): fc.Arbitrary<AuditInput> {
+function systemArb(profile: Profile): fc.Arbitrary<SystemAuditInput> {
   const depth = fc.integer({ min: profile.minDepth, max: Math.min(profile.maxDepth, profile.minDepth + 4) });
   const bitting = fc.array(depth, { minLength: profile.chambers, maxLength: profile.chambers }).map((d) => d.join(''));
   const level = fc.option(fc.constantFrom<KeyLevel>('grand-master', 'master', 'change'), { nil: undefined });
@@ -50,14 +50,14 @@ const systems = fc.oneof(usualProfile, smallProfile, usualProfile.map(smallKit))
  * readable keys the core lists (keying primer, "Incidental keys": a core opens for any key
  * whose depth in every chamber is one of that chamber's operating depths).
  */
-function bruteAccess(profile: Profile, system: AuditInput): Set<string> {
+function bruteAccess(profile: Profile, system: SystemAuditInput): Set<string> {
   const depthsOf = new Map<string, number[]>();
   for (const k of system.keys) {
     const t = k.bitting.trim();
     const ok = t.length === profile.chambers && [...t].every((ch) => ch >= '0' && ch <= '9' && Number(ch) >= profile.minDepth && Number(ch) <= profile.maxDepth);
     if (ok && !depthsOf.has(k.id)) depthsOf.set(k.id, [...t].map(Number));
   }
-  const firstOf = new Map<string, AuditInput['keys'][number]>();
+  const firstOf = new Map<string, SystemAuditInput['keys'][number]>();
   for (const k of system.keys) if (!firstOf.has(k.id)) firstOf.set(k.id, k);
   const out = new Set<string>();
   const seenCores = new Set<string>();

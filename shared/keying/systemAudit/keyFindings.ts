@@ -1,11 +1,11 @@
 import { readBitting } from '../bitting';
 import { macsBreak, sameProgression } from '../rules';
-import type { AuditContext } from './context';
+import type { SystemAuditContext } from './context';
 import type { CloseGroup } from './finders';
 import { coreName, finding, keyRefs, nameList, plural, type Ranked } from './format';
 
 /** Findings about keys and references on their own: readability, duplicates, cut rules. */
-export function keyFindings(ctx: AuditContext, close: CloseGroup[]): Ranked[] {
+export function keyFindings(ctx: SystemAuditContext, close: CloseGroup[]): Ranked[] {
   const out: Ranked[] = [];
   const { profile, system, depths } = ctx;
 
@@ -89,7 +89,7 @@ const detailLines = 500;
  * depths there differ by less than the step (or any group in a one-step system) stays a
  * warning of its own.
  */
-function closeFindings(ctx: AuditContext, close: CloseGroup[]): Ranked[] {
+function closeFindings(ctx: SystemAuditContext, close: CloseGroup[]): Ranked[] {
   const out: Ranked[] = [];
   const { profile, depths } = ctx;
   const normal: CloseGroup[] = [];

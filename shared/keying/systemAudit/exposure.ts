@@ -1,5 +1,5 @@
 import { progressionDepths } from '../rules';
-import type { AuditContext } from './context';
+import type { SystemAuditContext } from './context';
 import { finding, keyRefs, plural, type Ranked } from './format';
 
 /**
@@ -10,7 +10,7 @@ import { finding, keyRefs, plural, type Ranked } from './format';
  * there differs from the top master's. With two-step progression only same-parity depths
  * are candidates, so each mastered position costs at most (candidates − 1) test cuts.
  */
-export function exposureFinding(ctx: AuditContext): Ranked | null {
+export function exposureFinding(ctx: SystemAuditContext): Ranked | null {
   if (ctx.topMaster < 0) return null;
   const { profile, depths } = ctx;
   const top = depths[ctx.topMaster] as number[];

@@ -1,4 +1,4 @@
-import type { AuditContext } from './context';
+import type { SystemAuditContext } from './context';
 import { KeyList, keysMatching } from './enumerate';
 
 /**
@@ -10,7 +10,7 @@ import { KeyList, keysMatching } from './enumerate';
  * count whatever the size of the system. A core accepting very many bittings is tested
  * key by key instead (see keysMatching).
  */
-export function keysTurningIndexed(ctx: AuditContext): number[][] {
+export function keysTurningIndexed(ctx: SystemAuditContext): number[][] {
   const { profile, pinnings } = ctx;
   const chambers = profile.chambers;
   const masks = new Int32Array(chambers);

@@ -2,7 +2,7 @@ import { describe, expect, test } from 'vitest';
 import { builtInProfiles } from '../profiles';
 import type { Profile } from '../types';
 import { auditSystem } from './auditSystem';
-import type { AuditInput } from './types';
+import type { SystemAuditInput } from './types';
 
 const sfic6 = builtInProfiles['sfic-6'] as Profile;
 
@@ -14,7 +14,7 @@ const sfic6 = builtInProfiles['sfic-6'] as Profile;
 
 describe('openings threshold: over means more than (keying primer, incidental keys)', () => {
   // One core for change 222222 under master 444444: two depths in every chamber, 2^6 = 64 bittings.
-  const system = (openingsThreshold: number): AuditInput => ({
+  const system = (openingsThreshold: number): SystemAuditInput => ({
     control: '135791',
     openingsThreshold,
     topMaster: 'm',

@@ -1,5 +1,5 @@
 import type { KeyingIssueCode } from '../codes';
-import type { AuditContext } from './context';
+import type { SystemAuditContext } from './context';
 import { coreIds, coreName, finding, keyRefs, nameList, plural, type Ranked } from './format';
 
 /**
@@ -15,7 +15,7 @@ const buildCodes = new Set<KeyingIssueCode>([
 ]);
 
 /** Findings about the control key and about each core's pinning. */
-export function coreFindings(ctx: AuditContext): Ranked[] {
+export function coreFindings(ctx: SystemAuditContext): Ranked[] {
   const out: Ranked[] = [];
   const { system, control, depths } = ctx;
   let controlCode = 0;
@@ -39,7 +39,7 @@ export function coreFindings(ctx: AuditContext): Ranked[] {
       const first = problems.slice(0, 3).map((p) => p.message).join(' ');
       out.push(finding('core-unbuildable', c, {
         message: `Core ${coreName(ctx, c)} cannot be pinned as planned (${plural(problems.length, 'problem')}): ${first}`,
-        advice: 'Fix the problems named, then audit again; the Bench will not load this core until then.',
+        advice: 'Fix the problems named, then run the system audit again; the Bench will not load this core until then.',
         cores: coreIds(ctx, [c]),
         chambers: [...new Set(problems.flatMap((p) => (p.chamber === undefined ? [] : [p.chamber])))],
       }));

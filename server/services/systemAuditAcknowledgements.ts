@@ -1,5 +1,5 @@
 /**
- * Acknowledged audit findings. A finding is identified by a fingerprint: an HMAC (under a
+ * Acknowledged system audit findings. A finding is identified by a fingerprint: an HMAC (under a
  * key derived from the data key, so a bitting cannot be guessed back from it) of its code,
  * its message, the control key and the bittings of every key it involves (its own keys
  * and the operating keys of its cores). Recut one of those keys and the fingerprint
@@ -7,17 +7,10 @@
  */
 import { createHmac } from 'node:crypto';
 import type { Knex } from 'knex';
-import type { AuditFinding, AuditInput } from '../../shared/keying';
+import type { SystemAuditFinding, SystemAuditInput } from '../../shared/keying';
+import type { Acknowledgement, SystemAuditReportFinding } from '../../shared/schemas/systemAudit';
 
-export interface Acknowledgement {
-  note: string;
-  by: string;
-  at: string;
-}
-
-export type AcknowledgedFinding = AuditFinding & { fingerprint: string; acknowledged: Acknowledgement | null };
-
-export function fingerprinter(dataKey: Buffer, audit: AuditInput): (f: AuditFinding) => string {
+export function fingerprinter(dataKey: Buffer, audit: SystemAuditInput): (f: SystemAuditFinding) => string {
   const key = createHmac('sha256', dataKey).update('corewright audit finding fingerprint v1').digest();
   const bitting = new Map(audit.keys.map((k) => [k.id, k.bitting.trim()]));
   const operating = new Map(audit.cores.map((c) => [c.id, c.operating]));
@@ -32,7 +25,7 @@ export function fingerprinter(dataKey: Buffer, audit: AuditInput): (f: AuditFind
 }
 
 /** The findings with their fingerprints and, where an administrator acknowledged one, the note. */
-export async function withAcknowledgements(db: Knex, systemId: string, dataKey: Buffer, audit: AuditInput, findings: AuditFinding[]): Promise<AcknowledgedFinding[]> {
+export async function withAcknowledgements(db: Knex, systemId: string, dataKey: Buffer, audit: SystemAuditInput, findings: SystemAuditFinding[]): Promise<SystemAuditReportFinding[]> {
   const print = fingerprinter(dataKey, audit);
   const rows = (await db('audit_acknowledgements').where({ key_system_id: systemId }).select('fingerprint', 'note', 'acknowledged_by_name', 'acknowledged_at')) as
     { fingerprint: string; note: string; acknowledged_by_name: string; acknowledged_at: Date }[];
@@ -45,7 +38,7 @@ export async function withAcknowledgements(db: Knex, systemId: string, dataKey: 
 
 export async function acknowledge(
   db: Knex,
-  input: { systemId: string; finding: AcknowledgedFinding; note: string; user: { id: string; name: string } },
+  input: { systemId: string; finding: SystemAuditReportFinding; note: string; user: { id: string; name: string } },
 ): Promise<Acknowledgement> {
   const [row] = await db('audit_acknowledgements')
     .insert({ key_system_id: input.systemId, code: input.finding.code, fingerprint: input.finding.fingerprint, note: input.note, acknowledged_by: input.user.id, acknowledged_by_name: input.user.name })

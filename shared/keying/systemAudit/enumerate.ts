@@ -1,4 +1,4 @@
-import type { AuditContext } from './context';
+import type { SystemAuditContext } from './context';
 import type { BittingTable } from './bittingTable';
 
 /**
@@ -49,7 +49,7 @@ export class KeyList {
  * small next to the number of keys, each such bitting is looked up among the keys, so the
  * cost does not grow with the system; otherwise every key is tested against the masks.
  */
-export function keysMatching(ctx: AuditContext, masks: Int32Array, count: number, out: KeyList): void {
+export function keysMatching(ctx: SystemAuditContext, masks: Int32Array, count: number, out: KeyList): void {
   if (count <= Math.max(256, ctx.validKeys.length >>> 3)) {
     walk(masks, 0, 0, ctx.byBitting, out);
     return;

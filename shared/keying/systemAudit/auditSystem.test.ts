@@ -1,11 +1,11 @@
 import { describe, expect, test } from 'vitest';
-import { auditFindingCodes } from '../codes';
+import { systemAuditFindingCodes } from '../codes';
 import { builtInProfiles } from '../profiles';
 import { smallKit } from '../testing/arbitraries';
 import type { Profile } from '../types';
 import { auditSystem } from './auditSystem';
 import { grouped } from './format';
-import type { AuditFinding, AuditInput } from './types';
+import type { SystemAuditFinding, SystemAuditInput } from './types';
 
 const sfic6 = builtInProfiles['sfic-6'] as Profile;
 
@@ -15,7 +15,7 @@ const sfic6 = builtInProfiles['sfic-6'] as Profile;
  * AC1 is cut like AA2 (duplicate); SP1 442444 is an incidental key of Room 101; X1 is cut
  * like the control key; BAD cannot be read; Z1 needs a one-unit wafer in core C5.
  */
-const system: AuditInput = {
+const system: SystemAuditInput = {
   control: '135794',
   openingsThreshold: 3,
   keys: [
@@ -41,7 +41,7 @@ const system: AuditInput = {
 };
 
 const findings = auditSystem(sfic6, system);
-const of = (code: AuditFinding['code']): AuditFinding[] => findings.filter((f) => f.code === code);
+const of = (code: SystemAuditFinding['code']): SystemAuditFinding[] => findings.filter((f) => f.code === code);
 
 describe('auditSystem on a planted system', () => {
   test('unintended access: the incidental key and the duplicate', () => {
@@ -127,10 +127,10 @@ describe('auditSystem on a planted system', () => {
 
   test('sorted errors, then warnings, then information; codes in their listed order', () => {
     const rank = { error: 0, warning: 1, info: 2 };
-    const codes = Object.keys(auditFindingCodes);
+    const codes = Object.keys(systemAuditFindingCodes);
     for (let i = 1; i < findings.length; i++) {
-      const a = findings[i - 1] as AuditFinding;
-      const b = findings[i] as AuditFinding;
+      const a = findings[i - 1] as SystemAuditFinding;
+      const b = findings[i] as SystemAuditFinding;
       expect(rank[a.severity] * 100 + codes.indexOf(a.code)).toBeLessThanOrEqual(rank[b.severity] * 100 + codes.indexOf(b.code));
     }
     expect(auditSystem(sfic6, system)).toEqual(findings);
@@ -182,7 +182,7 @@ describe('auditSystem: the control shear line', () => {
   // 266666, top master 044444, masters 024444 (AA) and 064444 (AB), change keys 022244 and
   // 028844 under AA, 066666 under AB. Chamber 1 of every core is built up 10 + 2, whose seam
   // is the control line of depth 0, so AB1 (066666) releases all three cores.
-  const example: AuditInput = {
+  const example: SystemAuditInput = {
     control: '266666',
     topMaster: 'k-a',
     keys: [

@@ -22,11 +22,11 @@ beforeAll(async () => {
 afterAll(async () => h.close());
 
 const auditOf = async (token = admin): Promise<Finding[]> => {
-  const res = await h.call('GET', `/api/key-systems/${demoId}/audit`, { token });
+  const res = await h.call('GET', `/api/key-systems/${demoId}/system-audit`, { token });
   expect(res.status).toBe(200);
   return res.json.findings;
 };
-const ackPath = () => `/api/key-systems/${demoId}/audit/acknowledgements`;
+const ackPath = () => `/api/key-systems/${demoId}/system-audit/acknowledgements`;
 
 describe('the demo campus audit', () => {
   test('opens with a handful of findings: one line for the change keys one position apart, not one warning per pair (keying primer)', async () => {
@@ -52,7 +52,7 @@ describe('the demo campus audit', () => {
   });
 });
 
-describe('POST /api/key-systems/:id/audit/acknowledgements', () => {
+describe('POST /api/key-systems/:id/system-audit/acknowledgements', () => {
   test('a supervisor and a technician get 403 and nothing is stored', async () => {
     const [finding] = await auditOf();
     const before = await countRows(h.db, 'audit_acknowledgements', 'audit_events');
@@ -82,7 +82,7 @@ describe('POST /api/key-systems/:id/audit/acknowledgements', () => {
   });
 
   test('an unknown key system is a 404', async () => {
-    const res = await h.call('POST', `/api/key-systems/${randomUUID()}/audit/acknowledgements`, { token: admin, body: { fingerprint: 'a'.repeat(64), note: 'Accepted.' } });
+    const res = await h.call('POST', `/api/key-systems/${randomUUID()}/system-audit/acknowledgements`, { token: admin, body: { fingerprint: 'a'.repeat(64), note: 'Accepted.' } });
     expect(res.status).toBe(404);
   });
 

@@ -1,4 +1,4 @@
-import type { AuditContext } from './context';
+import type { SystemAuditContext } from './context';
 import type { CloseGroup } from './finders';
 
 /**
@@ -7,7 +7,7 @@ import type { CloseGroup } from './finders';
  * position over the change keys, into an open-addressing table of typed arrays (no object
  * per key), instead of comparing every pair.
  */
-export function closeChangeKeysHashed(ctx: AuditContext): CloseGroup[] {
+export function closeChangeKeysHashed(ctx: SystemAuditContext): CloseGroup[] {
   const { profile, depths, validKeys, isChange, byBitting } = ctx;
   const changeKeys = validKeys.filter((k) => isChange[k]);
   const n = changeKeys.length;

@@ -2,16 +2,16 @@ import { readBitting } from '../bitting';
 import { pinCore } from '../pinCore';
 import { BittingTable } from './bittingTable';
 import type { CorePinning, Profile } from '../types';
-import type { AuditInput, KeyLevel } from './types';
+import type { SystemAuditInput, KeyLevel } from './types';
 
 /**
  * Everything the audit checks read, worked out once: bittings read, references resolved
  * to indexes, every core pinned. Both the indexed audit and the all-pairs baseline start
  * from here, so they can differ only in how they find who turns what.
  */
-export interface AuditContext {
+export interface SystemAuditContext {
   profile: Profile;
-  system: AuditInput;
+  system: SystemAuditInput;
   /** Depths per key (system order); null when the bitting cannot be read. */
   depths: (number[] | null)[];
   /** Indexes of keys with readable bittings, ascending. */
@@ -39,7 +39,7 @@ export function levelOf(key: { level?: KeyLevel; opens: string[] }): KeyLevel {
 }
 
 /** Null when the control bitting cannot be read: nothing else can be pinned then. */
-export function buildContext(profile: Profile, system: AuditInput): AuditContext | null {
+export function buildContext(profile: Profile, system: SystemAuditInput): SystemAuditContext | null {
   const controlReading = readBitting(profile, system.control);
   if (!controlReading.ok) return null;
 
@@ -96,7 +96,7 @@ export function buildContext(profile: Profile, system: AuditInput): AuditContext
   };
 }
 
-function pickTopMaster(system: AuditInput, depths: (number[] | null)[]): number {
+function pickTopMaster(system: SystemAuditInput, depths: (number[] | null)[]): number {
   if (system.topMaster !== undefined) {
     const i = system.keys.findIndex((k) => k.id === system.topMaster);
     return i >= 0 && depths[i] ? i : -1;

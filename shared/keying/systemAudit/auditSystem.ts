@@ -5,17 +5,17 @@ import { accessFindings } from './accessFindings';
 import { buildContext } from './context';
 import { coreFindings } from './coreFindings';
 import { exposureFinding } from './exposure';
-import type { AuditFinders } from './finders';
+import type { SystemAuditFinders } from './finders';
 import { finding, sortFindings, type Ranked } from './format';
 import { keyFindings } from './keyFindings';
 import { releaseFindings } from './releaseFindings';
-import type { AuditFinding, AuditInput } from './types';
+import type { SystemAuditFinding, SystemAuditInput } from './types';
 
 /**
  * Audits a whole system with the given searches. Exposed so a baseline (the all-pairs
  * audit in benchmarks/) can run the same checks with its own searches and be compared.
  */
-export function auditSystemWith(profile: Profile, system: AuditInput, finders: AuditFinders): AuditFinding[] {
+export function auditSystemWith(profile: Profile, system: SystemAuditInput, finders: SystemAuditFinders): SystemAuditFinding[] {
   const ctx = buildContext(profile, system);
   if (!ctx) {
     const reading = readBitting(profile, system.control);
@@ -43,6 +43,6 @@ export function auditSystemWith(profile: Profile, system: AuditInput, finders: A
  * amplification). Messages name keys by symbol and cores by label (tag and door), never
  * by a position in a list; `keyIds` and `cores` carry the ids.
  */
-export function auditSystem(profile: Profile, system: AuditInput): AuditFinding[] {
+export function auditSystem(profile: Profile, system: SystemAuditInput): SystemAuditFinding[] {
   return auditSystemWith(profile, system, accessIndex);
 }

@@ -1,5 +1,5 @@
-import type { AuditContext } from './context';
-import { auditFindingCodes, type AuditFindingCode } from '../codes';
+import type { SystemAuditContext } from './context';
+import { systemAuditFindingCodes, type SystemAuditFindingCode } from '../codes';
 import { coreName, nameList, plural, type Ranked } from './format';
 
 /**
@@ -8,7 +8,7 @@ import { coreName, nameList, plural, type Ranked } from './format';
  * core neither names is unintended access, and a key named only by its own record
  * that does not turn the core is an intended key that fails.
  */
-export function accessFindings(ctx: AuditContext, turning: number[][]): Ranked[] {
+export function accessFindings(ctx: SystemAuditContext, turning: number[][]): Ranked[] {
   const keyCount = ctx.system.keys.length;
   // (key, core) pairs of each kind, appended in core order; grouped by key below.
   const unintended = new Pairs();
@@ -58,10 +58,10 @@ export function accessFindings(ctx: AuditContext, turning: number[][]): Ranked[]
   return out;
 }
 
-const symbolOf = (ctx: AuditContext, k: number): string => ctx.system.keys[k]?.symbol ?? '';
+const symbolOf = (ctx: SystemAuditContext, k: number): string => ctx.system.keys[k]?.symbol ?? '';
 
 /** nameList over cores[from..to): the first names and how many more. */
-function coreNameList(ctx: AuditContext, cores: Int32Array, from: number, to: number): string {
+function coreNameList(ctx: SystemAuditContext, cores: Int32Array, from: number, to: number): string {
   const names: string[] = [];
   for (let i = from; i < to && i < from + 6; i++) names.push(coreName(ctx, cores[i] as number));
   return nameList(names, 5, to - from);
@@ -69,7 +69,7 @@ function coreNameList(ctx: AuditContext, cores: Int32Array, from: number, to: nu
 
 /** One finding about key k and cores[from..to), built in one object (no spread copies). */
 function keyFinding(
-  ctx: AuditContext, code: AuditFindingCode, k: number, cores: Int32Array, from: number, to: number,
+  ctx: SystemAuditContext, code: SystemAuditFindingCode, k: number, cores: Int32Array, from: number, to: number,
   message: string, advice: string,
 ): Ranked {
   const key = ctx.system.keys[k];
@@ -77,7 +77,7 @@ function keyFinding(
   for (let i = from; i < to; i++) ids[i - from] = ctx.system.cores[cores[i] as number]?.id ?? '';
   return {
     finding: {
-      code, severity: auditFindingCodes[code].severity, message, advice,
+      code, severity: systemAuditFindingCodes[code].severity, message, advice,
       keys: [key?.symbol ?? ''], keyIds: [key?.id ?? ''], cores: ids, data: { cores: to - from },
     },
     order: k,

@@ -1,4 +1,4 @@
-import type { AuditContext } from './context';
+import type { SystemAuditContext } from './context';
 import { coreIds, coreName, finding, keyRefs, nameList, plural, type Ranked } from './format';
 
 /**
@@ -8,7 +8,7 @@ import { coreIds, coreName, finding, keyRefs, nameList, plural, type Ranked } fr
  * says it releases every core. One summary says how many cores release for more than
  * the control key (two-wafer seams at the control line).
  */
-export function releaseFindings(ctx: AuditContext, releasing: number[][]): Ranked[] {
+export function releaseFindings(ctx: SystemAuditContext, releasing: number[][]): Ranked[] {
   const out: Ranked[] = [];
   let controlCode = 0;
   for (const d of ctx.control) controlCode = controlCode * 10 + d;

@@ -1,5 +1,5 @@
 import { controlDepthMask } from '../keyOperates';
-import type { AuditContext } from './context';
+import type { SystemAuditContext } from './context';
 import { KeyList, keysMatching } from './enumerate';
 
 /*
@@ -11,7 +11,7 @@ import { KeyList, keysMatching } from './enumerate';
  * We list those bittings and look each up among the keys by bitting: cost per core is
  * its control openings count, not the number of keys.
  */
-export function keysReleasingIndexed(ctx: AuditContext): number[][] {
+export function keysReleasingIndexed(ctx: SystemAuditContext): number[][] {
   const { profile, pinnings } = ctx;
   const masks = new Int32Array(profile.chambers);
   const scratch = new KeyList();

@@ -1,4 +1,4 @@
-import type { AuditContext } from './context';
+import type { SystemAuditContext } from './context';
 
 /** Change keys that all agree except in one position (they differ in fewer than 2). */
 export interface CloseGroup {
@@ -15,10 +15,10 @@ export interface CloseGroup {
  * the plug; the keys that line up the control shear line); `closeChangeKeys` sorted by
  * (first key, position).
  */
-export interface AuditFinders {
-  keysTurning(ctx: AuditContext): number[][];
-  keysReleasing(ctx: AuditContext): number[][];
-  closeChangeKeys(ctx: AuditContext): CloseGroup[];
+export interface SystemAuditFinders {
+  keysTurning(ctx: SystemAuditContext): number[][];
+  keysReleasing(ctx: SystemAuditContext): number[][];
+  closeChangeKeys(ctx: SystemAuditContext): CloseGroup[];
 }
 
 export function sortCloseGroups(groups: CloseGroup[]): CloseGroup[] {

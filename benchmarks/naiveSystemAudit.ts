@@ -6,12 +6,12 @@
  * measures how much the indexed searches save.
  */
 import { auditSystemWith, keyOperates, sortCloseGroups } from '../shared/keying';
-import type { AuditContext, AuditFinders, AuditFinding, AuditInput, CloseGroup, Profile } from '../shared/keying';
+import type { SystemAuditContext, SystemAuditFinders, SystemAuditFinding, SystemAuditInput, CloseGroup, Profile } from '../shared/keying';
 
 /** Both answers of one keyOperates call per key and core, kept for the second finder. */
-const pairs = new WeakMap<AuditContext, { turning: number[][]; releasing: number[][] }>();
+const pairs = new WeakMap<SystemAuditContext, { turning: number[][]; releasing: number[][] }>();
 
-function testEveryPair(ctx: AuditContext): { turning: number[][]; releasing: number[][] } {
+function testEveryPair(ctx: SystemAuditContext): { turning: number[][]; releasing: number[][] } {
   let done = pairs.get(ctx);
   if (done) return done;
   const turning: number[][] = [];
@@ -32,11 +32,11 @@ function testEveryPair(ctx: AuditContext): { turning: number[][]; releasing: num
   return done;
 }
 
-export const allPairs: AuditFinders = {
+export const allPairs: SystemAuditFinders = {
   keysTurning: (ctx) => testEveryPair(ctx).turning,
   keysReleasing: (ctx) => testEveryPair(ctx).releasing,
 
-  closeChangeKeys(ctx: AuditContext): CloseGroup[] {
+  closeChangeKeys(ctx: SystemAuditContext): CloseGroup[] {
     const keys = ctx.validKeys.filter((k) => ctx.isChange[k]);
     const groups = new Map<string, { position: number; keys: Set<number> }>();
     for (let a = 0; a < keys.length; a++) {
@@ -63,6 +63,6 @@ export const allPairs: AuditFinders = {
   },
 };
 
-export function naiveAudit(profile: Profile, system: AuditInput): AuditFinding[] {
+export function naiveSystemAudit(profile: Profile, system: SystemAuditInput): SystemAuditFinding[] {
   return auditSystemWith(profile, system, allPairs);
 }

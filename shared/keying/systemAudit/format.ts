@@ -1,26 +1,26 @@
-import { auditFindingCodes, type AuditFindingCode } from '../codes';
-import type { AuditContext } from './context';
-import type { AuditFinding, FindingSeverity } from './types';
+import { systemAuditFindingCodes, type SystemAuditFindingCode } from '../codes';
+import type { SystemAuditContext } from './context';
+import type { SystemAuditFinding, FindingSeverity } from './types';
 
 /** A finding plus the index it sorts by within its code (a key's or a core's position). */
 export interface Ranked {
-  finding: AuditFinding;
+  finding: SystemAuditFinding;
   order: number;
 }
 
 export function finding(
-  code: AuditFindingCode,
+  code: SystemAuditFindingCode,
   order: number,
-  parts: Omit<AuditFinding, 'code' | 'severity'>,
+  parts: Omit<SystemAuditFinding, 'code' | 'severity'>,
 ): Ranked {
-  return { finding: { code, severity: auditFindingCodes[code].severity, ...parts }, order };
+  return { finding: { code, severity: systemAuditFindingCodes[code].severity, ...parts }, order };
 }
 
 const severityRank: Record<FindingSeverity, number> = { error: 0, warning: 1, info: 2 };
-const codeRank = new Map(Object.keys(auditFindingCodes).map((code, i) => [code, i]));
+const codeRank = new Map(Object.keys(systemAuditFindingCodes).map((code, i) => [code, i]));
 
 /** Errors first, then warnings, then information; within those by code, then system order. */
-export function sortFindings(ranked: Ranked[]): AuditFinding[] {
+export function sortFindings(ranked: Ranked[]): SystemAuditFinding[] {
   return ranked
     .sort((a, b) =>
       severityRank[a.finding.severity] - severityRank[b.finding.severity] ||
@@ -41,19 +41,19 @@ export function nameList(names: readonly string[], max = 5, total = names.length
   return `${names.slice(0, max).join(', ')} and ${total - max} more`;
 }
 
-export function keyRefs(ctx: AuditContext, keys: readonly number[]): { keys: string[]; keyIds: string[] } {
+export function keyRefs(ctx: SystemAuditContext, keys: readonly number[]): { keys: string[]; keyIds: string[] } {
   return {
     keys: keys.map((k) => ctx.system.keys[k]?.symbol ?? ''),
     keyIds: keys.map((k) => ctx.system.keys[k]?.id ?? ''),
   };
 }
 
-export function coreName(ctx: AuditContext, c: number): string {
+export function coreName(ctx: SystemAuditContext, c: number): string {
   const core = ctx.system.cores[c];
   return core?.label ?? core?.id ?? '';
 }
 
-export function coreIds(ctx: AuditContext, cores: readonly number[]): string[] {
+export function coreIds(ctx: SystemAuditContext, cores: readonly number[]): string[] {
   return cores.map((c) => ctx.system.cores[c]?.id ?? '');
 }
 
