@@ -37,6 +37,10 @@ const consoleRoutes: RouteRecordRaw[] = [
   { path: 'doors/:id/history', name: 'doors.history', component: () => import('@/pages/DoorHistoryPage.vue'), meta: { roles: office, title: 'Door history' } },
   { path: 'users', name: 'users.list', component: () => import('@/pages/UsersPage.vue'), meta: { roles: admin, title: 'Users' } },
   { path: 'audit-trail', name: 'auditTrail.list', component: () => import('@/pages/AuditTrailPage.vue'), meta: { roles: admin, title: 'Audit trail' } },
+  // ---- key control (issue 13): office roles only ----
+  { path: 'key-holders', name: 'holders.list', component: () => import('@/pages/HoldersPage.vue'), meta: { roles: office, title: 'Key holders' } },
+  { path: 'key-holders/:id', name: 'holders.detail', component: () => import('@/pages/HolderDetailPage.vue'), meta: { roles: office, title: 'Key holder' } },
+  { path: 'key-issues/:id/receipt', name: 'keyIssues.receipt', component: () => import('@/pages/PrintReceiptPage.vue'), meta: { roles: office, title: 'Key receipt' } },
   // The old address keeps working (bookmarks, links in mail), filters included.
   { path: 'audit', redirect: (to) => ({ name: 'auditTrail.list', query: to.query }) },
 ];
@@ -73,4 +77,5 @@ export const navigation = [
   { name: 'doors.list', label: 'Doors', icon: 'sensor_door' },
   { name: 'users.list', label: 'Users', icon: 'group' },
   { name: 'auditTrail.list', label: 'Audit trail', icon: 'policy' },
+  { name: 'holders.list', label: 'Key holders', icon: 'badge', group: 'Key control' },
 ] as const;
