@@ -1,10 +1,8 @@
 /** Profiles: the built-in ones from the engine, and custom ones an admin keeps in the database. */
 import type { Knex } from 'knex';
-import { builtInProfiles, validateProfile, type Profile } from '../../shared/keying';
-import type { ProfileRow } from '../../shared/schemas/profiles';
-import type { ProfileInput } from '../../shared/schemas/records';
+import { builtInProfiles } from '../../shared/keying';
+import type { Profile, ProfileRow } from '../../shared/schemas/profiles';
 import { badRequest, conflict, notFound } from '../errors';
-
 
 export async function listProfiles(db: Knex): Promise<ProfileRow[]> {
   const custom = await db('profiles').orderBy('label').select('definition');
@@ -22,16 +20,8 @@ export async function getProfile(db: Knex, id: string): Promise<Profile> {
   return row.definition as Profile;
 }
 
-function check(input: ProfileInput): Profile {
-  const problems = validateProfile(input);
-  if (problems.length) {
-    throw badRequest(`The profile has ${problems.length} problem(s): ${problems[0]!.message}`, problems.map((p) => ({ field: p.field, message: p.message })));
-  }
-  return input;
-}
-
-export async function createProfile(db: Knex, input: ProfileInput): Promise<ProfileRow> {
-  const profile = check(input);
+/** `profile` is parsed with the `Profile` schema, which runs validateProfile. */
+export async function createProfile(db: Knex, profile: Profile): Promise<ProfileRow> {
   if (builtInProfiles[profile.id] || (await db('profiles').where({ id: profile.id }).first('id'))) {
     throw conflict(`A profile with the id "${profile.id}" exists already; choose another id.`, [{ field: 'id', message: 'already used' }]);
   }
@@ -39,11 +29,10 @@ export async function createProfile(db: Knex, input: ProfileInput): Promise<Prof
   return { ...profile, builtIn: false };
 }
 
-export async function updateProfile(db: Knex, id: string, input: ProfileInput): Promise<ProfileRow> {
+export async function updateProfile(db: Knex, id: string, profile: Profile): Promise<ProfileRow> {
   if (builtInProfiles[id]) throw badRequest('Built-in profiles cannot be changed; make a custom profile from it instead.');
-  if (input.id !== id) throw badRequest('The id of a profile cannot change.', [{ field: 'id', message: `must stay "${id}"` }]);
+  if (profile.id !== id) throw badRequest('The id of a profile cannot change.', [{ field: 'id', message: `must stay "${id}"` }]);
   const inUse = await db('key_systems').where({ profile_id: id }).first('id');
-  const profile = check(input);
   if (inUse) {
     const old = await getProfile(db, id);
     if (old.chambers !== profile.chambers || old.stackUnits !== profile.stackUnits || old.sleeveUnits !== profile.sleeveUnits) {

@@ -1,5 +1,6 @@
 import type { KeyingIssueCode } from './codes';
 import { KeyingError } from './errors';
+import { depthRange } from './limits';
 import type { Profile } from './types';
 
 export type BittingReading =
@@ -24,7 +25,8 @@ export function readBitting(profile: Profile, text: string): BittingReading {
   const depths = new Array<number>(trimmed.length);
   for (let i = 0; i < trimmed.length; i++) {
     const d = trimmed.charCodeAt(i) - 48;
-    if (d < 0 || d > 9) {
+    // One digit per chamber: a character outside the digits the depth range allows is no depth at all.
+    if (d < depthRange.min || d > depthRange.max) {
       return {
         ok: false,
         code: 'bitting-not-digit',

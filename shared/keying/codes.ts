@@ -2,6 +2,7 @@
  * Every code the keying engine can report, with what it means in shop words. The UI and
  * the server look messages up here so a code always reads the same wherever it shows.
  */
+import { adjacentCutRange, chamberRange, depthRange, partSizeRange, sleeveRange, stackRange, stepRange, stockedSizesRange, waferRange } from './limits';
 
 export const keyingIssueCodes = {
   // Reading a bitting (parseBitting throws these; pinCore reports them as errors).
@@ -36,13 +37,13 @@ export const keyingIssueCodes = {
   'progress-too-large': { severity: 'error', meaning: 'The progression would list too many keys; set a limit.' },
   'progress-limit': { severity: 'error', meaning: 'The limit must be a whole number, zero or more.' },
   // Checking a profile (validateProfile).
-  'profile-chambers': { severity: 'error', meaning: 'A profile has 5 to 8 chambers.' },
-  'profile-depths': { severity: 'error', meaning: 'The depth range must be whole numbers within 0..9, shallowest first.' },
-  'profile-stack': { severity: 'error', meaning: 'Stack height and sleeve do not leave room for every depth and a top pin.' },
-  'profile-wafer': { severity: 'error', meaning: 'The thinnest wafer must be a whole number of units, 1 or more.' },
-  'profile-step': { severity: 'error', meaning: 'The progression step must be 1 or 2.' },
-  'profile-macs': { severity: 'error', meaning: 'The maximum adjacent cut must be a whole number, 1 or more.' },
-  'profile-stock': { severity: 'error', meaning: 'Stocked sizes must be listed, as whole numbers of units.' },
+  'profile-chambers': { severity: 'error', meaning: `A profile has ${chamberRange.min} to ${chamberRange.max} chambers.` },
+  'profile-depths': { severity: 'error', meaning: `The depth range must be whole numbers within ${depthRange.min}..${depthRange.max}, shallowest first.` },
+  'profile-stack': { severity: 'error', meaning: `Stack height and sleeve do not leave room for every depth and a top pin, or lie outside ${stackRange.min} to ${stackRange.max} and ${sleeveRange.min} to ${sleeveRange.max} units.` },
+  'profile-wafer': { severity: 'error', meaning: `The thinnest wafer must be a whole number of units, ${waferRange.min} to ${waferRange.max}.` },
+  'profile-step': { severity: 'error', meaning: `The progression step must be ${stepRange.min} or ${stepRange.max}.` },
+  'profile-macs': { severity: 'error', meaning: `The maximum adjacent cut must be a whole number, ${adjacentCutRange.min} to ${adjacentCutRange.max}.` },
+  'profile-stock': { severity: 'error', meaning: `Stocked sizes must be listed (${stockedSizesRange.min} to ${stockedSizesRange.max} of each part), as whole numbers of units from ${partSizeRange.min} to ${partSizeRange.max}.` },
 } as const satisfies Record<string, { severity: 'error' | 'warning'; meaning: string }>;
 
 export type KeyingIssueCode = keyof typeof keyingIssueCodes;

@@ -8,6 +8,8 @@ export type { SystemAuditFindingCode, KeyingIssueCode } from './codes';
 export { KeyingError, hasErrors } from './errors';
 export { builtInProfiles, chambersBackToFront } from './profiles';
 export { validateProfile } from './validateProfile';
+export { adjacentCutRange, chamberRange, depthRange, partSizeRange, sleeveRange, stackRange, stepRange, stockedSizesRange, waferRange } from './limits';
+export type { Range } from './limits';
 export type { ProfileProblem } from './validateProfile';
 export { formatBitting, parseBitting, readBitting } from './bitting';
 export type { BittingReading } from './bitting';

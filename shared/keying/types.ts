@@ -9,7 +9,7 @@ import type { KeyingIssueCode } from './codes';
 export interface Profile {
   id: string;
   label: string;
-  /** 5..8; 6 and 7 are usual. */
+  /** Within chamberRange (limits.ts); 6 and 7 are usual. */
   chambers: number;
   /** Depth range a key can be cut to; 0 and 9 for the usual SFIC profile. */
   minDepth: number;

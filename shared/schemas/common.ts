@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { chamberRange } from '../keying/limits';
 
 export const Id = z.uuid({ error: 'must be a UUID' });
 export const IsoDateTime = z.iso.datetime({ offset: true, error: 'must be a date and time like 2026-12-01T09:30:00Z' });
@@ -7,7 +8,7 @@ export const IsoDate = z.iso.date({ error: 'must be a date like 2026-12-01' });
 export const BittingText = z
   .string({ error: 'enter the bitting as digits, chamber 1 first' })
   .trim()
-  .regex(/^[0-9]{5,8}$/, { error: 'a bitting is 5 to 8 digits, chamber 1 first (for example 246802)' });
+  .regex(new RegExp(`^[0-9]{${chamberRange.min},${chamberRange.max}}$`), { error: `a bitting is ${chamberRange.min} to ${chamberRange.max} digits, chamber 1 first (for example 246802)` });
 /**
  * Characters no record holds. Postgres text cannot store U+0000, and the other C0 and C1
  * controls (and DEL) are never typed on purpose; notes may keep tab and line breaks.

@@ -4,6 +4,7 @@
  */
 import { z } from 'zod';
 import { BittingText, Id, IsoDate, IsoDateTime, Name, Notes, Text } from './common';
+import { chamberRange } from '../keying/limits';
 import { levelNames } from '../words';
 
 export const KeyLevel = z.enum(['ggm', 'gm', 'master', 'change']);
@@ -26,27 +27,6 @@ export const purposeLabels: Record<WorkOrderPurpose, string> = {
 };
 /** The screens' names for the levels: shared/words.ts. */
 export const levelLabels: Record<KeyLevel, string> = levelNames;
-
-// ---- profiles -------------------------------------------------------------------------
-const Sizes = z.array(z.number().int().min(0).max(30)).min(1, { error: 'stock at least one size' }).max(40);
-export const ProfileId = z.string({ error: 'a profile id is text' }).trim().regex(/^[a-z0-9-]{3,40}$/, { error: 'an id is 3 to 40 lower-case letters, digits and dashes' });
-export const ProfileInput = z.strictObject({
-  id: ProfileId,
-  label: Name(120, 'a descriptive name'),
-  chambers: z.number().int().min(5, { error: 'at least 5 chambers' }).max(8, { error: 'at most 8 chambers' }),
-  minDepth: z.number().int().min(0).max(15),
-  maxDepth: z.number().int().min(1).max(15),
-  stackUnits: z.number().int().min(5).max(60),
-  sleeveUnits: z.number().int().min(1).max(30),
-  minWaferUnits: z.number().int().min(1).max(10),
-  step: z.number().int().min(1).max(3),
-  maxAdjacentCut: z.number().int().min(1).max(15),
-  bottomPins: Sizes,
-  wafers: Sizes,
-  topPins: Sizes,
-  chamberOneAt: z.enum(['back', 'front']),
-});
-export type ProfileInput = z.infer<typeof ProfileInput>;
 
 // ---- key systems and keys ---------------------------------------------------------------
 export const KeySystemInput = z.strictObject({
@@ -101,11 +81,11 @@ export const progressionMethodLabels: Record<ProgressionMethod, string> = {
   'rotating-constant': 'Rotating constant',
 };
 export const ProgressionInput = z.strictObject({
-  progress: z.array(z.number().int().min(1).max(8)).min(1, { error: 'choose at least one chamber to progress' }).max(8),
+  progress: z.array(z.number().int().min(1).max(chamberRange.max)).min(1, { error: 'choose at least one chamber to progress' }).max(chamberRange.max),
   parentId: Id,
   method: ProgressionMethod.default('total-position'),
   /** Rotating constant: progressed chambers kept at the master's depth in each key. */
-  constants: z.number().int().min(1, { error: 'keep at least one chamber constant' }).max(7).default(1),
+  constants: z.number().int().min(1, { error: 'keep at least one chamber constant' }).max(chamberRange.max - 1).default(1),
   limit: z.number().int().min(1).max(5000).default(200),
   symbolPrefix: z.string().trim().regex(/^[A-Z0-9-]{1,20}$/i, { error: 'a symbol prefix is letters, digits or dashes' }).optional(),
 });

@@ -5,6 +5,7 @@
  * payload is refused (conflict) and the stored row stays as it was.
  */
 import { z } from 'zod';
+import { chamberRange, partSizeRange } from '../keying/limits';
 import { Id, IsoDateTime, Name, Notes, Text } from './common';
 
 export const BenchStepKind = z.enum(['bottom', 'master', 'buildUp', 'top', 'level-check', 'springs', 'cap']);
@@ -12,8 +13,8 @@ export type BenchStepKind = z.infer<typeof BenchStepKind>;
 
 export const BenchStep = z.strictObject({
   kind: BenchStepKind,
-  chamber: z.number().int().min(1).max(8).nullable(),
-  size: z.number().int().min(0).max(30).nullable(),
+  chamber: z.number().int().min(1).max(chamberRange.max).nullable(),
+  size: z.number().int().min(partSizeRange.min).max(partSizeRange.max).nullable(),
   at: IsoDateTime,
   /** true when the technician redid this chamber: the earlier steps stay in the record. */
   redo: z.boolean().optional(),
