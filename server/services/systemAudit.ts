@@ -6,7 +6,7 @@ import { compareSymbols } from '../../shared/keyLevels';
 import { loadSystem } from './keySystems';
 import type { Sealer } from './secrets';
 
-const levelFor: Record<KeyLevel, EngineLevel> = { ggm: 'great-grand-master', gm: 'grand-master', master: 'master', change: 'change' };
+export const levelFor: Record<KeyLevel, EngineLevel> = { ggm: 'great-grand-master', gm: 'grand-master', master: 'master', change: 'change' };
 
 export async function systemAuditInputFor(db: Knex, sealer: Sealer, systemId: string): Promise<{ profile: Profile; audit: SystemAuditInput }> {
   const system = await loadSystem(db, sealer, systemId);

@@ -10,18 +10,23 @@ import { KeySymbol } from './records';
 export const PlanCore = z.object({ coreId: Id, tag: z.string(), doorId: Id.nullable(), doorLabel: z.string().nullable() });
 export type PlanCore = z.infer<typeof PlanCore>;
 
+export const RekeyOption = z.enum(['new-change-key', 're-master', 'rekey-under-master'], { error: 'option is new-change-key, re-master or rekey-under-master' });
+export type RekeyOption = z.infer<typeof RekeyOption>;
+
 export const RekeyChoice = z.object({
-  option: z.enum(['new-change-key', 're-master', 'rekey-under-master']),
+  option: RekeyOption,
   description: z.string(),
   coresToBuild: z.number(),
   keysToReissue: z.number(),
+  /** Why this choice cannot be made in one step on this system (no key that shuts the lost one out), or null. */
+  blocked: z.string().nullable(),
 });
 export type RekeyChoice = z.infer<typeof RekeyChoice>;
 
 export const RekeyPlan = z.object({
   reportId: Id,
   lostKey: z.object({ id: Id, symbol: z.string(), level: z.enum(['ggm', 'gm', 'master', 'change']) }),
-  /** For a change key: the symbol the new key would take; null when no unused key passes the audit. */
+  /** The symbol the lost key's replacement would take (the new change key, or the new master of the first choice that can be made); null when none can be made. */
   newKeySymbol: z.string().nullable(),
   /** Unused keys of the progression that pass the system audit (the first is proposed). */
   unusedKeysPassing: z.number(),
@@ -32,15 +37,19 @@ export const RekeyPlan = z.object({
   copiesToReissue: z.array(z.object({ issueId: Id, holderId: Id, holderName: z.string(), keySymbol: z.string(), copyNumber: z.number() })),
   choices: z.array(RekeyChoice),
   workOrderId: Id.nullable(),
+  /** The choice the work order was made with, once it is. */
+  chosen: RekeyOption.nullable(),
 });
 export type RekeyPlan = z.infer<typeof RekeyPlan>;
 export const RekeyPlanAnswer = z.object({ plan: RekeyPlan });
 export type RekeyPlanAnswer = z.infer<typeof RekeyPlanAnswer>;
 
 export const RekeyWorkOrderInput = z.strictObject({
+  /** One of the plan's choices; its first choice when left out. */
+  option: RekeyOption.optional(),
   assigneeId: Id.nullable().optional(),
   dueDate: IsoDate.nullable().optional(),
-  /** The new key's symbol; the plan's suggestion when left out. */
+  /** The new key's symbol (the lost key's replacement); the plan's suggestion when left out. */
   newKeySymbol: KeySymbol.optional(),
 });
 export type RekeyWorkOrderInput = z.infer<typeof RekeyWorkOrderInput>;
