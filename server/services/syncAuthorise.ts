@@ -13,6 +13,8 @@ export interface SyncUser {
   role: string;
   /** Kept on each completion as it was when the work landed. */
   name: string;
+  /** For the audit trail of what the landing work closes. */
+  email?: string;
 }
 
 export interface CoreRef {

@@ -2,11 +2,13 @@
  * Sync step 4, land: every checked record in ONE transaction keyed by the tablet's client ids
  * (INSERT ... ON CONFLICT DO NOTHING), completions before installs so a core built and installed
  * offline syncs in one go. A core's state follows its records' own times, not their arrival
- * (reliability.md T5); an install follows the pinning (T4: installRules.ts).
+ * (reliability.md T5); an install follows the pinning (T4: installRules.ts), and the install that
+ * finishes a lost key's rekey closes its report in the same transaction (keyCloseout.ts).
  */
 import type { Knex } from 'knex';
 import type { CompletionRecord, InstallRecord } from '../../shared/schemas/sync';
 import { checkInstall } from './installRules';
+import { closeReportsAfterInstalls } from './keyCloseout';
 import { sealPinSizes } from './pinSizes';
 import type { Sealer } from './secrets';
 import type { CoreRef, SyncUser } from './syncAuthorise';
@@ -129,6 +131,9 @@ export async function landChecked(trx: Knex.Transaction, sealer: Sealer, input: 
   if (lockWos.length) await trx('work_orders').whereIn('id', lockWos).orderBy('id').forUpdate().select('id');
   await landCompletions(trx, sealer, input, out);
   await landInstalls(trx, input, out);
+  // A lost key's rekey finishes with its last install: the old keys retire and the report closes (keyCloseout.ts).
+  const installed = input.installs.filter((i) => out.accepted.has(i.record.clientId)).map((i) => i.record.coreId);
+  await closeReportsAfterInstalls(trx, installed, { id: input.user.id, email: input.user.email ?? null });
   // Work orders whose every core is built are done.
   const wos = [...new Set(input.completions.map((i) => i.record.workOrderId))];
   if (wos.length) {

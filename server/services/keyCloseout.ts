@@ -1,0 +1,45 @@
+/**
+ * Closing a lost or stolen key report. It hooks into sync's land step (syncLand.ts), in the same
+ * transaction as the installs: once every core of the report's rekey work order is installed (or
+ * retired after it), each old key the work order replaced is retired, every holder of a copy of it
+ * (copies out, and the reported copy) gets a re-issue task, and the report closes. A replayed
+ * install lands nothing, and a closed report is never closed again, so nothing happens twice; the
+ * tasks are unique per report and copy as well.
+ */
+import type { Knex } from 'knex';
+import { audit, type Actor } from './auditTrail';
+
+interface Replaced { oldKeyId: string; newKeyId: string }
+
+/** Reports whose work order holds any of these cores, closed when their work order is all installed. */
+export async function closeReportsAfterInstalls(trx: Knex.Transaction, coreIds: string[], actor: Actor): Promise<string[]> {
+  if (!coreIds.length) return [];
+  const reports = (await trx('key_reports as r')
+    .whereIn('r.work_order_id', trx('work_order_cores').whereIn('core_id', coreIds).select('work_order_id'))
+    .where('r.status', 'open')
+    .orderBy('r.id')
+    .forUpdate()
+    .select('r.id', 'r.issue_id', 'r.work_order_id', 'r.new_keys')) as { id: string; issue_id: string; work_order_id: string; new_keys: Replaced[] | null }[];
+  const closed: string[] = [];
+  for (const r of reports) {
+    const waiting = await trx('work_order_cores as x').join('cores as c', 'c.id', 'x.core_id').where('x.work_order_id', r.work_order_id).whereNotIn('c.state', ['installed', 'retired']).first('c.id');
+    if (waiting) continue;
+    const replaced = r.new_keys ?? [];
+    const newOf = new Map(replaced.map((k) => [k.oldKeyId, k.newKeyId]));
+    await trx('keys').whereIn('id', [...newOf.keys()]).update({ status: 'retired', updated_at: trx.fn.now() });
+    const copies = (await trx('key_issues')
+      .whereIn('key_id', [...newOf.keys()])
+      .where((w) => w.where('status', 'out').orWhere('id', r.issue_id))
+      .select('id', 'holder_id', 'key_id')) as { id: string; holder_id: string; key_id: string }[];
+    if (copies.length) {
+      await trx('key_reissue_tasks')
+        .insert(copies.map((c) => ({ report_id: r.id, holder_id: c.holder_id, old_issue_id: c.id, new_key_id: newOf.get(c.key_id)! })))
+        .onConflict(['report_id', 'old_issue_id'])
+        .ignore();
+    }
+    await trx('key_reports').where({ id: r.id }).update({ status: 'closed', closed_at: trx.fn.now() });
+    await audit(trx, actor, 'key-report.closed', { type: 'key-report', id: r.id }, { workOrder: r.work_order_id, retired: replaced.length, reissue: copies.length });
+    closed.push(r.id);
+  }
+  return closed;
+}

@@ -1,0 +1,128 @@
+// Key control, restoring control after a lost key: the report's work order is built and installed
+// through the normal sync path (the server is the authority), and the install that finishes it
+// retires the old key(s), gives every holder of a copy a re-issue task and closes the report, in
+// the same transaction; a replayed batch changes nothing (reliability.md S1: idempotent replay).
+// The office closes a task by issuing the new key. Source: the primer's "Key control" (lost keys,
+// re-issue) and common practice (the old key is retired once no core takes it).
+import { randomUUID } from 'node:crypto';
+import { afterAll, beforeAll, describe, expect, test } from 'vitest';
+import type { Packet } from '../../shared/schemas/packet';
+import { loadSystem } from '../../server/services/keySystems';
+import { completionFor } from './factories';
+import { startHarness, type Harness } from './harness';
+
+let h: Harness;
+let lead: string;
+let tech: string;
+let techId: string;
+const deviceId = randomUUID();
+const keyIdOf = async (symbol: string) => (await h.db('keys').where({ symbol }).first('id')).id as string;
+const ack = { name: 'Holder (demo)', accepted: true };
+
+beforeAll(async () => {
+  h = await startHarness({}, { demo: true });
+  lead = await h.tokenFor('supervisor');
+  tech = await h.tokenFor('technician');
+  techId = (await h.db('users').where({ email: 'tech@demo.corewright.test' }).first('id')).id;
+});
+afterAll(async () => h.close());
+
+/** The tablet's records for every core of the work order: a passed completion and an install in its door (the old core named). */
+async function recordsFor(workOrderId: string) {
+  const res = await h.call('GET', `/api/work-orders/${workOrderId}/packet`, { token: tech });
+  expect(res.status, res.text).toBe(200);
+  const packet = res.json.packet as Packet;
+  const records = [];
+  for (const core of packet.cores) {
+    const old = await h.db('cores').where({ door_id: core.door!.id, state: 'installed' }).first('tag');
+    records.push({ completion: completionFor(workOrderId, core), install: { clientId: randomUUID(), kind: 'install', coreId: core.id, doorId: core.door!.id, removedCoreTag: old?.tag ?? null, installedAt: new Date().toISOString() } });
+  }
+  return records;
+}
+const sync = (records: unknown[]) => h.call('POST', '/api/sync', { token: tech, body: { deviceId, records } });
+
+async function report(reportId: string) {
+  return h.db('key_reports').where({ id: reportId }).first('status', 'closed_at');
+}
+
+describe('a lost change key: installed, retired, re-issued, closed', () => {
+  test('the last install closes the report: the old key retired, a re-issue task for each holder of a copy, once, even when the batch is replayed', async () => {
+    // The demo's open report: Cass's copy of AB7, lost. A second holder has a copy too.
+    const reportId = (await h.db('key_reports').first('id')).id as string;
+    const ab7 = await keyIdOf('AB7');
+    const other = (await h.call('POST', '/api/holders', { token: lead, body: { name: 'Second AB7 holder (demo)', department: 'Library Services' } })).json.holder.id;
+    const otherIssue = (await h.call('POST', '/api/key-issues', { token: lead, body: { holderId: other, keyId: ab7, acknowledgement: ack } })).json.issue;
+    const made = await h.call('POST', `/api/key-reports/${reportId}/work-order`, { token: lead, body: { assigneeId: techId } });
+    expect(made.status, made.text).toBe(201);
+    const recs = await recordsFor(made.json.workOrderId);
+    expect(recs.length).toBeGreaterThan(0);
+
+    // Built but not installed: the report stays open and the old key is only lost.
+    expect((await sync(recs.map((r) => r.completion))).json.accepted).toHaveLength(recs.length);
+    expect(await report(reportId)).toMatchObject({ status: 'open', closed_at: null });
+    const [last, ...first] = recs.reverse();
+    if (first.length) {
+      expect((await sync(first.map((r) => r.install))).json.accepted).toHaveLength(first.length);
+      expect((await report(reportId))!.status).toBe('open');
+    }
+
+    const batch = [last!.install];
+    const landed = await sync(batch);
+    expect(landed.json.accepted).toEqual([last!.install.clientId]);
+    const closed = await report(reportId);
+    expect(closed).toMatchObject({ status: 'closed' });
+    expect(closed!.closed_at).not.toBeNull();
+    const system = await loadSystem(h.db, h.sealer, (await h.db('key_systems').first('id')).id);
+    expect(system.keys.find((k) => k.id === ab7)!.status).toBe('retired');
+    const tasks = (await h.call('GET', '/api/key-reissue-tasks?status=open', { token: lead })).json.tasks as { id: string; holderName: string; oldKeySymbol: string; oldCopyStatus: string; newKeySymbol: string; newKeyId: string }[];
+    const mine = tasks.filter((t) => t.oldKeySymbol === 'AB7');
+    expect(mine.map((t) => [t.holderName, t.oldCopyStatus]).sort()).toEqual([['Cass Moreno (demo)', 'lost'], ['Second AB7 holder (demo)', 'out']]);
+    expect(new Set(mine.map((t) => t.newKeySymbol))).toEqual(new Set([made.json.newKeySymbol]));
+    // No bitting in the tasks.
+    for (const b of [system.control, ...system.keys.map((k) => k.bitting)]) expect(JSON.stringify(tasks).includes(b)).toBe(false);
+
+    // Replayed: duplicates, and nothing changes (one closing event, the same tasks, the same close time).
+    const again = await sync(batch);
+    expect(again.json.accepted).toEqual([]);
+    expect(again.json.duplicates).toEqual([last!.install.clientId]);
+    expect(await report(reportId)).toEqual(closed);
+    expect(Number((await h.db('key_reissue_tasks').where({ report_id: reportId }).count({ n: '*' }).first())!.n)).toBe(2);
+    expect(Number((await h.db('audit_events').where({ action: 'key-report.closed', target_id: reportId }).count({ n: '*' }).first())!.n)).toBe(1);
+
+    // The office closes a task by issuing the new key; the old copy still out comes back.
+    const task = mine.find((t) => t.oldCopyStatus === 'out')!;
+    const done = await h.call('POST', `/api/key-reissue-tasks/${task.id}/issue`, { token: lead, body: { acknowledgement: ack } });
+    expect(done.status, done.text).toBe(200);
+    expect(done.json.task).toMatchObject({ status: 'done', newCopyNumber: 1, oldCopyStatus: 'returned' });
+    expect((await h.db('key_issues').where({ id: otherIssue.id }).first('status')).status).toBe('returned');
+    expect(Number((await h.db('key_issues').where({ holder_id: other, key_id: task.newKeyId, status: 'out' }).count({ n: '*' }).first())!.n)).toBe(1);
+    const twice = await h.call('POST', `/api/key-reissue-tasks/${task.id}/issue`, { token: lead, body: { acknowledgement: ack } });
+    expect(twice.status).toBe(409);
+    expect(Number((await h.db('key_issues').where({ key_id: task.newKeyId }).count({ n: '*' }).first())!.n)).toBe(1);
+    const bad = await h.call('POST', `/api/key-reissue-tasks/${mine.find((t) => t.oldCopyStatus === 'lost')!.id}/issue`, { token: lead, body: { acknowledgement: { name: 'X', accepted: false } } });
+    expect(bad.status).toBe(400);
+    expect(bad.json.error.details[0].field).toMatch(/acknowledgement/);
+  });
+});
+
+describe('a lost master: every key under it retired once the rekey is installed', () => {
+  test('rekey under the master: the master and its change keys retire, every holder of their copies gets a task, the report closes', async () => {
+    const ad = await keyIdOf('AB');
+    const holder = (await h.call('POST', '/api/holders', { token: lead, body: { name: 'AB holder (demo)', department: 'Facilities' } })).json.holder.id;
+    const issue = (await h.call('POST', '/api/key-issues', { token: lead, body: { holderId: holder, keyId: ad, acknowledgement: ack } })).json.issue;
+    const reportId = (await h.call('POST', `/api/key-issues/${issue.id}/report`, { token: lead, body: { kind: 'stolen' } })).json.report.id;
+    const made = await h.call('POST', `/api/key-reports/${reportId}/work-order`, { token: lead, body: { option: 'rekey-under-master', assigneeId: techId } });
+    expect(made.status, made.text).toBe(201);
+    const children = (await h.db('keys').where({ parent_id: ad }).pluck('id')) as string[];
+    const recs = await recordsFor(made.json.workOrderId);
+    const res = await sync(recs.flatMap((r) => [r.completion, r.install]));
+    expect(res.json.rejected, JSON.stringify(res.json.rejected)).toEqual([]);
+    expect((await report(reportId))!.status).toBe('closed');
+    const statuses = (await h.db('keys').whereIn('id', [ad, ...children]).pluck('status')) as string[];
+    expect(new Set(statuses)).toEqual(new Set(['retired']));
+    const out = (await h.db('key_issues').whereIn('key_id', [ad, ...children]).where('status', 'out').count({ n: '*' }).first())!.n;
+    const tasks = (await h.db('key_reissue_tasks').where({ report_id: reportId }).count({ n: '*' }).first())!.n;
+    // Every copy still out of AB or a key under it, and the stolen copy itself.
+    expect(Number(tasks)).toBe(Number(out) + 1);
+  });
+});
