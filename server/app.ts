@@ -17,6 +17,7 @@ import { devicesRouter } from './routes/devices';
 import { doorsRouter } from './routes/doors';
 import { healthRouter } from './routes/health';
 import { holdersRouter } from './routes/holders';
+import { keyCampaignLinksRouter, keyCampaignsRouter } from './routes/keyCampaigns';
 import { keyExposureRouter } from './routes/keyExposure';
 import { keyIssuesRouter } from './routes/keyIssues';
 import { keyRequestLinksRouter, keyRequestsRouter } from './routes/keyRequests';
@@ -82,8 +83,9 @@ export function createApp({ db, config, mailer, smtp, log }: AppDeps): Express {
   // The development mailbox exists only when npm start runs the fake SMTP outside production; otherwise 404.
   if (smtp && config.env !== 'production') api.use(devRouter(smtp));
   else api.use('/dev', notFoundApi);
-  // The authoriser's mailed link needs no sign-in: the single-use token is the credential.
+  // The authoriser's and the holder's mailed links need no sign-in: the single-use token is the credential.
   api.use(keyRequestLinksRouter(ctx));
+  api.use(keyCampaignLinksRouter(ctx));
   api.use(requireAuth(db, config));
   // Every router below states its roles with allow(...).
   api.use(usersRouter(ctx));
@@ -101,6 +103,7 @@ export function createApp({ db, config, mailer, smtp, log }: AppDeps): Express {
   api.use(keyIssuesRouter(ctx));
   api.use(keyExposureRouter(ctx));
   api.use(keyRequestsRouter(ctx));
+  api.use(keyCampaignsRouter(ctx));
   api.use(notFoundApi);
   app.use('/api', api);
 

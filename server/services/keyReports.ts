@@ -5,7 +5,7 @@ import { conflict, notFound } from '../errors';
 import { keyExposureOf } from './keyExposure';
 import type { Sealer } from './secrets';
 
-export async function reportKey(db: Knex, sealer: Sealer, issueId: string, input: KeyReportInput, by: string): Promise<string> {
+export async function reportKey(db: Knex, sealer: Sealer, issueId: string, input: KeyReportInput, by: string | null): Promise<string> {
   const issue = await db('key_issues').where({ id: issueId }).forUpdate().first('id', 'status', 'key_id');
   if (!issue) throw notFound('That key issue');
   if (issue.status !== 'out') throw conflict(`This copy is ${issue.status}: only a copy that is out can be reported lost or stolen.`, [{ field: 'issueId', message: issue.status }]);

@@ -19,7 +19,9 @@ import { InstallMismatchList, InstallReview } from '../../shared/schemas/install
 import { KeyIds, KeyList, KeyOperatesList, KeyReplacement, KeySystemAnswer, KeySystemList } from '../../shared/schemas/keySystems';
 import { CutList, DepartmentAnswer, DepartmentList, HolderAnswer, HolderList, KeyIssueAnswer, KeyIssueList, OutstandingKeys } from '../../shared/schemas/keyControl';
 import { DoorAccess, ExposureAnswer, HolderAccess, KeyReportAnswer, KeyReportList } from '../../shared/schemas/keyControlExposure';
+import { CampaignLinkAnswer, KeyCampaignAnswer, KeyCampaignList } from '../../shared/schemas/keyControlCampaigns';
 import { RekeyPlanAnswer, RekeyWorkOrderDone } from '../../shared/schemas/keyControlRekey';
+import { ReissueTaskAnswer, ReissueTaskList } from '../../shared/schemas/keyControlReissue';
 import { KeyProposal, KeyRequestAnswer, KeyRequestList, LinkRequestAnswer } from '../../shared/schemas/keyControlRequests';
 import { ProfileAnswer, ProfileList } from '../../shared/schemas/profiles';
 import { ProgressionPreview } from '../../shared/schemas/records';
@@ -71,6 +73,13 @@ export const answers: Record<string, Answer> = {
   'POST /api/key-requests/:id/decision': json(KeyRequestAnswer),
   'POST /api/key-request-links/view': json(LinkRequestAnswer),
   'POST /api/key-request-links/decide': json(LinkRequestAnswer),
+  'POST /api/key-campaigns': json(KeyCampaignAnswer),
+  'GET /api/key-campaigns': json(KeyCampaignList),
+  'GET /api/key-campaigns/:id': json(KeyCampaignAnswer),
+  'GET /api/key-reissue-tasks': json(ReissueTaskList),
+  'POST /api/key-reissue-tasks/:id/issue': json(ReissueTaskAnswer),
+  'POST /api/key-campaign-links/view': json(CampaignLinkAnswer),
+  'POST /api/key-campaign-links/confirm': json(CampaignLinkAnswer),
   'POST /api/auth/sign-in': json(SignInResponse),
   'POST /api/auth/refresh': json(SignInResponse),
   'POST /api/auth/set-password': json(PasswordSet),

@@ -123,6 +123,13 @@ const matrix: Entry[] = [
   { method: 'POST', route: '/api/key-requests/:id/decision', path: `/api/key-requests/${randomUUID()}/decision`, allow: SUP, ok: 400, body: {} },
   { method: 'POST', route: '/api/key-request-links/view', path: '/api/key-request-links/view', allow: 'public', ok: 400, body: {} },
   { method: 'POST', route: '/api/key-request-links/decide', path: '/api/key-request-links/decide', allow: 'public', ok: 400, body: {} },
+  { method: 'POST', route: '/api/key-campaigns', path: '/api/key-campaigns', allow: SUP, ok: 400, body: {} },
+  { method: 'GET', route: '/api/key-campaigns', path: '/api/key-campaigns', allow: SUP, ok: 200 },
+  { method: 'GET', route: '/api/key-campaigns/:id', path: `/api/key-campaigns/${randomUUID()}`, allow: SUP, ok: 404 },
+  { method: 'GET', route: '/api/key-reissue-tasks', path: '/api/key-reissue-tasks', allow: SUP, ok: 200 },
+  { method: 'POST', route: '/api/key-reissue-tasks/:id/issue', path: `/api/key-reissue-tasks/${randomUUID()}/issue`, allow: SUP, ok: 400, body: {} },
+  { method: 'POST', route: '/api/key-campaign-links/view', path: '/api/key-campaign-links/view', allow: 'public', ok: 400, body: {} },
+  { method: 'POST', route: '/api/key-campaign-links/confirm', path: '/api/key-campaign-links/confirm', allow: 'public', ok: 400, body: {} },
 ];
 
 let h: Harness;
