@@ -13,9 +13,12 @@ export interface StockTable {
   profile: Profile;
 }
 
+/** In the mask only whole sizes 0..30 (the ones maskOf sets); any other size (fractional, negative, large) is looked up in the list. */
+const inMask = (size: number): boolean => Number.isInteger(size) && size >= 0 && size < 31;
+
 function maskOf(sizes: readonly number[]): number {
   let mask = 0;
-  for (const s of sizes) if (s >= 0 && s < 31 && Number.isInteger(s)) mask |= 1 << s;
+  for (const s of sizes) if (inMask(s)) mask |= 1 << s;
   return mask;
 }
 
@@ -24,7 +27,7 @@ export function stockTable(profile: Profile): StockTable {
 }
 
 function has(mask: number, list: readonly number[], size: number): boolean {
-  return size >= 0 && size < 31 ? ((mask >>> size) & 1) === 1 : list.includes(size);
+  return inMask(size) ? ((mask >>> size) & 1) === 1 : list.includes(size);
 }
 
 export const hasBottom = (t: StockTable, size: number): boolean => has(t.bottom, t.profile.bottomPins, size);
