@@ -152,9 +152,9 @@ async function masterChoices(db: Knex, sealer: Sealer, system: LoadedSystem, key
 const planCore = (c: { id: string; tag: string; doorId: string | null; doorLabel: string | null }): PlanCore => ({ coreId: c.id, tag: c.tag, doorId: c.doorId, doorLabel: c.doorLabel });
 
 async function loadReport(db: Knex, reportId: string) {
-  const r = await db('key_reports as r').join('key_issues as i', 'i.id', 'r.issue_id').join('keys as k', 'k.id', 'i.key_id').where('r.id', reportId).first('r.id', 'r.status', 'r.work_order_id', 'r.rekey_option', 'k.id as keyId', 'k.key_system_id as systemId');
+  const r = await db('key_reports as r').join('key_issues as i', 'i.id', 'r.issue_id').join('keys as k', 'k.id', 'i.key_id').where('r.id', reportId).first('r.id', 'r.issue_id', 'r.status', 'r.work_order_id', 'r.rekey_option', 'k.id as keyId', 'k.key_system_id as systemId');
   if (!r) throw notFound('That key report');
-  return r as { id: string; status: string; work_order_id: string | null; rekey_option: RekeyOption | null; keyId: string; systemId: string };
+  return r as { id: string; issue_id: string; status: string; work_order_id: string | null; rekey_option: RekeyOption | null; keyId: string; systemId: string };
 }
 
 /** The plan, with each choice's recipe kept server-side (its bittings are never answered). */
@@ -170,7 +170,7 @@ async function computePlan(db: Knex, sealer: Sealer, reportId: string): Promise<
     grew = false;
     for (const k of system.keys) if (k.parentId && under.has(k.parentId) && !under.has(k.id)) { under.add(k.id); grew = true; }
   }
-  const copies = (await db('key_issues as i').join('key_holders as h', 'h.id', 'i.holder_id').join('keys as k', 'k.id', 'i.key_id').whereIn('i.key_id', key.level === 'change' ? [key.id] : [...under]).where('i.status', 'out').orderBy(['k.symbol', 'i.copy_number']).select('i.id as issueId', 'h.id as holderId', 'h.name as holderName', 'k.symbol as keySymbol', 'i.copy_number as copyNumber')) as RekeyPlan['copiesToReissue'];
+  const copies = (await db('key_issues as i').join('key_holders as h', 'h.id', 'i.holder_id').join('keys as k', 'k.id', 'i.key_id').whereIn('i.key_id', key.level === 'change' ? [key.id] : [...under]).where((w) => w.where('i.status', 'out').orWhere('i.id', report.issue_id)).orderBy(['k.symbol', 'i.copy_number']).select('i.id as issueId', 'h.id as holderId', 'h.name as holderName', 'k.symbol as keySymbol', 'i.copy_number as copyNumber')) as RekeyPlan['copiesToReissue'];
   const intended = new Set(exposed.filter((c) => c.how === 'intended').map((c) => c.id));
   const pinned = all.filter((c) => intended.has(c.id));
   const doorKeys = new Map(((await db('doors').whereIn('id', pinned.flatMap((c) => (c.doorId ? [c.doorId] : []))).select('id', 'key_id')) as { id: string; key_id: string | null }[]).map((d) => [d.id, d.key_id]));
@@ -191,10 +191,12 @@ async function computePlan(db: Knex, sealer: Sealer, reportId: string): Promise<
     choices = await masterChoices(db, sealer, system, key, cores);
   }
   const n = coresToRepin.length;
+  const coreWords = (k: number) => `${k} core${k === 1 ? '' : 's'}`;
+  const keyWords = (k: number) => `${k} key${k === 1 ? '' : 's'}`;
   const words: Record<RekeyOption, [string, number]> = {
-    'new-change-key': [`Pin the ${n} core(s) of ${key.symbol} for a new change key under ${parent?.symbol ?? 'its master'} and re-issue its ${ownCopies} copy(ies) out.`, ownCopies],
-    're-master': [`Give the ${n} core(s) under ${key.symbol} a new master (new master wafers; change keys unchanged) and re-issue only the ${ownCopies} copy(ies) of ${key.symbol}.`, ownCopies],
-    'rekey-under-master': [`Rekey every core under ${key.symbol} (new master and new change keys) and re-issue every copy out of ${key.symbol} and the keys under it (${copies.length}).`, copies.length],
+    'new-change-key': [`Pin the ${coreWords(n)} of ${key.symbol} for a new change key under ${parent?.symbol ?? 'its master'} and re-issue ${keyWords(ownCopies)} in place of ${key.symbol}'s copies.`, ownCopies],
+    're-master': [`Give the ${coreWords(n)} under ${key.symbol} a new master (new master wafers; change keys unchanged) and re-issue only the ${keyWords(ownCopies)} of ${key.symbol}.`, ownCopies],
+    'rekey-under-master': [`Rekey every core under ${key.symbol} (new master and new change keys) and re-issue every copy of ${key.symbol} and the keys under it (${keyWords(copies.length)}).`, copies.length],
   };
   const first = choices.find((c) => c.recipe)?.recipe?.add[0];
   const plan: RekeyPlan = {

@@ -33,7 +33,7 @@ export const RekeyPlan = z.object({
   coresToRepin: z.array(PlanCore),
   /** Cores the lost key turns only through master wafers: re-pinning them for the same keys does not shut it out. */
   incidentalCores: z.array(PlanCore),
-  /** Copies out of the lost key (and, for a master, of the keys under it), to re-issue. */
+  /** Copies out of the lost key (and, for a master, of the keys under it) and the reported copy: each holder gets the new key. */
   copiesToReissue: z.array(z.object({ issueId: Id, holderId: Id, holderName: z.string(), keySymbol: z.string(), copyNumber: z.number() })),
   choices: z.array(RekeyChoice),
   workOrderId: Id.nullable(),

@@ -47,8 +47,9 @@ describe('the plan for a lost change key', () => {
     expect(plan.newKeySymbol).toMatch(/^AB\d+$/);
     expect(system.keys.map((k) => k.symbol)).not.toContain(plan.newKeySymbol);
     expect(plan.unusedKeysPassing).toBeGreaterThan(0);
-    expect(plan.copiesToReissue.map((c: { issueId: string }) => c.issueId)).toEqual([issues[1]!.id]);
-    expect(plan.choices).toEqual([expect.objectContaining({ option: 'new-change-key', coresToBuild: 1, keysToReissue: 1 })]);
+    // The other copy out and the reported copy: both holders get the new key.
+    expect(plan.copiesToReissue.map((c: { issueId: string }) => c.issueId)).toEqual([issues[0]!.id, issues[1]!.id]);
+    expect(plan.choices).toEqual([expect.objectContaining({ option: 'new-change-key', coresToBuild: 1, keysToReissue: 2, blocked: null })]);
     for (const b of [system.control, ...system.keys.map((k) => k.bitting)]) expect(res.text.includes(b)).toBe(false);
   });
 
@@ -94,7 +95,7 @@ describe('the plan for a lost master', () => {
     const outUnder = await h.db('key_issues as i').join('keys as k', 'k.id', 'i.key_id').where('i.status', 'out').where((w) => w.where('k.id', keyId.get('AB')!).orWhere('k.parent_id', keyId.get('AB')!)).count({ n: '*' }).first();
     expect(plan.choices.map((c: { option: string }) => c.option)).toEqual(['re-master', 'rekey-under-master']);
     expect(plan.choices.map((c: { coresToBuild: number }) => c.coresToBuild)).toEqual([Number(installed!.n), Number(installed!.n)]);
-    expect(plan.choices[1].keysToReissue).toBe(Number(outUnder!.n));
+    expect(plan.choices[1].keysToReissue).toBe(Number(outUnder!.n) + 1);
     // The demo's change keys keep AB's cuts in chambers 1-2 and the grand master's elsewhere, so a new
     // master alone never shuts AB out (every chamber of AB is a change key's or the grand master's cut).
     expect(plan.choices[0].blocked).toMatch(/choose the rekey/);
