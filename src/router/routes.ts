@@ -41,6 +41,11 @@ const consoleRoutes: RouteRecordRaw[] = [
   { path: 'key-holders', name: 'holders.list', component: () => import('@/pages/HoldersPage.vue'), meta: { roles: office, title: 'Key holders' } },
   { path: 'key-holders/:id', name: 'holders.detail', component: () => import('@/pages/HolderDetailPage.vue'), meta: { roles: office, title: 'Key holder' } },
   { path: 'key-issues/:id/receipt', name: 'keyIssues.receipt', component: () => import('@/pages/PrintReceiptPage.vue'), meta: { roles: office, title: 'Key receipt' } },
+  { path: 'key-reports', name: 'keyReports.list', component: () => import('@/pages/KeyReportsPage.vue'), meta: { roles: office, title: 'Lost keys' } },
+  { path: 'key-reports/:id', name: 'keyReports.detail', component: () => import('@/pages/KeyReportPage.vue'), meta: { roles: office, title: 'Lost key' } },
+  { path: 'key-reissue', name: 'reissueTasks.list', component: () => import('@/pages/ReissueTasksPage.vue'), meta: { roles: office, title: 'Re-issue tasks' } },
+  { path: 'key-audits', name: 'keyCampaigns.list', component: () => import('@/pages/KeyCampaignsPage.vue'), meta: { roles: office, title: 'Key audits' } },
+  { path: 'key-audits/:id', name: 'keyCampaigns.detail', component: () => import('@/pages/KeyCampaignPage.vue'), meta: { roles: office, title: 'Key audit' } },
   // The old address keeps working (bookmarks, links in mail), filters included.
   { path: 'audit', redirect: (to) => ({ name: 'auditTrail.list', query: to.query }) },
 ];
@@ -51,6 +56,8 @@ export const routes: RouteRecordRaw[] = [
   // From an invitation e-mail: /set-password?token=...
   { path: '/set-password', name: 'setPassword', component: () => import('@/pages/SetPasswordPage.vue'), meta: { public: true, title: 'Choose a password' } },
   // The local demo's captured mail; the server answers it only outside production.
+  // From a key audit e-mail: /confirm-keys#<token> (no sign-in; the token never reaches a server log).
+  { path: '/confirm-keys', name: 'confirmKeys', component: () => import('@/pages/ConfirmKeysPage.vue'), meta: { public: true, title: 'Confirm your keys' } },
   { path: '/dev/mailbox', name: 'dev.mailbox', component: () => import('@/pages/MailboxPage.vue'), meta: { public: true, title: 'Development mailbox' } },
   {
     path: '/',
@@ -78,4 +85,6 @@ export const navigation = [
   { name: 'users.list', label: 'Users', icon: 'group' },
   { name: 'auditTrail.list', label: 'Audit trail', icon: 'policy' },
   { name: 'holders.list', label: 'Key holders', icon: 'badge', group: 'Key control' },
+  { name: 'keyReports.list', label: 'Lost keys', icon: 'report', group: 'Key control' },
+  { name: 'keyCampaigns.list', label: 'Key audits', icon: 'fact_check', group: 'Key control' },
 ] as const;
