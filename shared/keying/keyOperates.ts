@@ -41,14 +41,6 @@ export function controlDepthMask(chamber: ChamberPinning, profile: Profile): num
   return mask;
 }
 
-/** How many bittings release the core: product over chambers of the depths that release. */
-export function controlOpenings(chambers: readonly ChamberPinning[], profile: Profile): number {
-  if (chambers.length === 0) return 0;
-  let n = 1;
-  for (const ch of chambers) n *= bitCount(controlDepthMask(ch, profile));
-  return n;
-}
-
 export function bitCount(mask: number): number {
   let v = mask - ((mask >>> 1) & 0x55555555);
   v = (v & 0x33333333) + ((v >>> 2) & 0x33333333);
