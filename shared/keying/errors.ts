@@ -5,7 +5,8 @@ import type { CorePinning } from './types';
 export class KeyingError extends Error {
   override readonly name = 'KeyingError';
   readonly code: KeyingIssueCode;
-  readonly chamber?: number;
+  // Declared, not defined: a KeyingError without a chamber has no `chamber` property at all.
+  declare readonly chamber?: number;
 
   constructor(code: KeyingIssueCode, message: string, chamber?: number) {
     super(message);
