@@ -5,8 +5,7 @@ import type { CorePinning } from './types';
 export class KeyingError extends Error {
   override readonly name = 'KeyingError';
   readonly code: KeyingIssueCode;
-  // Declared, not defined: a KeyingError without a chamber has no `chamber` property at all.
-  declare readonly chamber?: number;
+  readonly chamber?: number;
 
   constructor(code: KeyingIssueCode, message: string, chamber?: number) {
     super(message);
