@@ -37,9 +37,15 @@ const consoleRoutes: RouteRecordRaw[] = [
   { path: 'doors/:id/history', name: 'doors.history', component: () => import('@/pages/DoorHistoryPage.vue'), meta: { roles: office, title: 'Door history' } },
   { path: 'users', name: 'users.list', component: () => import('@/pages/UsersPage.vue'), meta: { roles: admin, title: 'Users' } },
   { path: 'audit-trail', name: 'auditTrail.list', component: () => import('@/pages/AuditTrailPage.vue'), meta: { roles: admin, title: 'Audit trail' } },
-  // ---- key control (issue 13): office roles only ----
+  // ---- key control (issue 13): holders, requests, issued copies; office roles only ----
   { path: 'key-holders', name: 'holders.list', component: () => import('@/pages/HoldersPage.vue'), meta: { roles: office, title: 'Key holders' } },
   { path: 'key-holders/:id', name: 'holders.detail', component: () => import('@/pages/HolderDetailPage.vue'), meta: { roles: office, title: 'Key holder' } },
+  { path: 'key-requests', name: 'keyRequests.list', component: () => import('@/pages/KeyRequestsPage.vue'), meta: { roles: office, title: 'Key requests' } },
+  { path: 'key-requests/new', name: 'keyRequests.new', component: () => import('@/pages/KeyRequestNewPage.vue'), meta: { roles: office, title: 'New key request' } },
+  { path: 'key-requests/:id', name: 'keyRequests.detail', component: () => import('@/pages/KeyRequestDetailPage.vue'), meta: { roles: office, title: 'Key request' } },
+  { path: 'key-issues', name: 'keyIssues.list', component: () => import('@/pages/KeyIssuesPage.vue'), meta: { roles: office, title: 'Keys issued' } },
+  { path: 'key-issues/new', name: 'keyIssues.new', component: () => import('@/pages/KeyIssueNewPage.vue'), meta: { roles: office, title: 'Issue a key' } },
+  { path: 'key-issues/cut-list', name: 'keyIssues.cutList', component: () => import('@/pages/PrintCutListPage.vue'), meta: { roles: office, title: 'Cut list' } },
   { path: 'key-issues/:id/receipt', name: 'keyIssues.receipt', component: () => import('@/pages/PrintReceiptPage.vue'), meta: { roles: office, title: 'Key receipt' } },
   { path: 'key-reports', name: 'keyReports.list', component: () => import('@/pages/KeyReportsPage.vue'), meta: { roles: office, title: 'Lost keys' } },
   { path: 'key-reports/:id', name: 'keyReports.detail', component: () => import('@/pages/KeyReportPage.vue'), meta: { roles: office, title: 'Lost key' } },
@@ -55,9 +61,11 @@ export const routes: RouteRecordRaw[] = [
   { path: '/sign-in', name: 'signIn', component: () => import('@/pages/SignInPage.vue'), meta: { public: true, title: 'Sign in' } },
   // From an invitation e-mail: /set-password?token=...
   { path: '/set-password', name: 'setPassword', component: () => import('@/pages/SetPasswordPage.vue'), meta: { public: true, title: 'Choose a password' } },
-  // The local demo's captured mail; the server answers it only outside production.
+  // From the authoriser's mail: /authorise#<token> (the token never reaches a server log).
+  { path: '/authorise', name: 'authorise', component: () => import('@/pages/AuthorisePage.vue'), meta: { public: true, title: 'Authorise a key' } },
   // From a key audit e-mail: /confirm-keys#<token> (no sign-in; the token never reaches a server log).
   { path: '/confirm-keys', name: 'confirmKeys', component: () => import('@/pages/ConfirmKeysPage.vue'), meta: { public: true, title: 'Confirm your keys' } },
+  // The local demo's captured mail; the server answers it only outside production.
   { path: '/dev/mailbox', name: 'dev.mailbox', component: () => import('@/pages/MailboxPage.vue'), meta: { public: true, title: 'Development mailbox' } },
   {
     path: '/',
@@ -85,6 +93,8 @@ export const navigation = [
   { name: 'users.list', label: 'Users', icon: 'group' },
   { name: 'auditTrail.list', label: 'Audit trail', icon: 'policy' },
   { name: 'holders.list', label: 'Key holders', icon: 'badge', group: 'Key control' },
+  { name: 'keyRequests.list', label: 'Key requests', icon: 'how_to_reg', group: 'Key control' },
+  { name: 'keyIssues.list', label: 'Keys issued', icon: 'vpn_key', group: 'Key control' },
   { name: 'keyReports.list', label: 'Lost keys', icon: 'report', group: 'Key control' },
   { name: 'keyCampaigns.list', label: 'Key audits', icon: 'fact_check', group: 'Key control' },
 ] as const;
