@@ -18,11 +18,13 @@ test('a key audit: started by the office, answered from the mailed link, the mis
   await page.setViewportSize({ width: 1440, height: 900 });
   await signIn(page, demo.supervisor);
   await page.getByRole('link', { name: 'Key audits', exact: true }).click();
+  expect(await smallTargets(page, 48), 'the key audits page').toEqual([]);
   await page.getByTestId('campaign-add').click();
   await page.getByTestId('campaign-title').fill('Library winter key audit');
   await page.getByTestId('campaign-department').click();
   await page.getByRole('option', { name: 'Library Services' }).click();
   await shot(page, 'start');
+  expect(await smallTargets(page, 48), 'the start form').toEqual([]);
   await page.getByTestId('campaign-start').click();
 
   await expect(page).toHaveURL(/\/key-audits\/[0-9a-f-]{36}$/);
@@ -45,6 +47,7 @@ test('a key audit: started by the office, answered from the mailed link, the mis
   await tab.getByTestId('confirm-answer-AB2 #1').getByText('I still have it').tap();
   await tab.getByTestId('confirm-answer-AB5 #1').getByText('I cannot find it').tap();
   await shot(tab, 'holder-390x844');
+  expect(await smallTargets(tab, 48), 'the holder\'s page').toEqual([]);
   await tab.getByTestId('confirm-send').tap();
   await expect(tab.getByTestId('confirm-done')).toContainText('Your answer is recorded');
   await expect(tab.getByTestId('confirm-missing-note')).toContainText('key AB5 copy 1');
