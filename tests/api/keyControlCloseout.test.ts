@@ -7,6 +7,7 @@
 import { randomUUID } from 'node:crypto';
 import { afterAll, beforeAll, describe, expect, test } from 'vitest';
 import type { Packet } from '../../shared/schemas/packet';
+import { keyOperates, pinCore } from '../../shared/keying';
 import { loadSystem } from '../../server/services/keySystems';
 import { completionFor } from './factories';
 import { startHarness, type Harness } from './harness';
@@ -124,5 +125,52 @@ describe('a lost master: every key under it retired once the rekey is installed'
     const tasks = (await h.db('key_reissue_tasks').where({ report_id: reportId }).count({ n: '*' }).first())!.n;
     // Every copy still out of AB or a key under it, and the stolen copy itself.
     expect(Number(tasks)).toBe(Number(out) + 1);
+  });
+});
+
+describe('a lost master keyed straight to its doors: re-mastered', () => {
+  test('a new master in its place, the cores rebuilt for it; brute force: the old master turns none of them; installed: the old master retired, the report closed', async () => {
+    const admin = await h.tokenFor('admin');
+    const system = await loadSystem(h.db, h.sealer, (await h.db('key_systems').first('id')).id);
+    // A store-room master under the grand master (chambers 1-2 progressed, as AA to AD), keying one door by itself.
+    const added = await h.call('POST', `/api/key-systems/${system.id}/keys`, { token: admin, body: { symbol: 'AX', level: 'master', parentId: await keyIdOf('A'), bitting: '8828462' } });
+    expect(added.status, added.text).toBe(201);
+    const ax = await keyIdOf('AX');
+    const door = await h.call('POST', '/api/doors', { token: admin, body: { site: 'Quillon Hill College', building: 'Cinder Works', floor: '1', room: 'ST1', label: 'CW-ST1', keySystemId: system.id, keyId: ax } });
+    expect(door.status, door.text).toBe(201);
+    const first = await h.call('POST', '/api/work-orders', { token: lead, body: { title: 'Store room core', purpose: 'maintenance', keySystemId: system.id, assigneeId: techId, doors: [{ doorId: door.json.door.id, keyId: ax }] } });
+    expect(first.status, first.text).toBe(201);
+    const built = await recordsFor(first.json.workOrder.id);
+    expect((await sync(built.flatMap((r) => [r.completion, r.install]))).json.rejected).toEqual([]);
+
+    const holder = (await h.call('POST', '/api/holders', { token: lead, body: { name: 'Store room holder (demo)', department: 'Facilities' } })).json.holder.id;
+    const issue = (await h.call('POST', '/api/key-issues', { token: lead, body: { holderId: holder, keyId: ax, acknowledgement: ack } })).json.issue;
+    const reportId = (await h.call('POST', `/api/key-issues/${issue.id}/report`, { token: lead, body: { kind: 'lost' } })).json.report.id;
+    const plan = (await h.call('GET', `/api/key-reports/${reportId}/plan`, { token: lead })).json.plan;
+    expect(plan.choices.map((c: { option: string; blocked: string | null }) => [c.option, c.blocked])).toEqual([['re-master', null], ['rekey-under-master', null]]);
+    const made = await h.call('POST', `/api/key-reports/${reportId}/work-order`, { token: lead, body: { option: 're-master', assigneeId: techId } });
+    expect(made.status, made.text).toBe(201);
+    expect(made.json.plan.chosen).toBe('re-master');
+
+    const after = await loadSystem(h.db, h.sealer, system.id);
+    const fresh = after.keys.find((k) => k.id === made.json.newKeyId)!;
+    expect(fresh).toMatchObject({ level: 'master', parentId: await keyIdOf('A'), status: 'active' });
+    expect((await h.db('doors').where({ id: door.json.door.id }).first('key_id')).key_id).toBe(fresh.id);
+    const oldBitting = '8828462';
+    const cores = (await h.db('work_order_cores').where({ work_order_id: made.json.workOrderId }).pluck('core_id')) as string[];
+    expect(cores).toHaveLength(1);
+    for (const core of cores) {
+      const operating = (await h.db('core_keys').where({ core_id: core }).pluck('key_id')) as string[];
+      const pinning = pinCore(after.profile, { operating: operating.map((id) => after.keys.find((k) => k.id === id)!.bitting), control: after.control });
+      expect(keyOperates(pinning, after.profile, oldBitting).plug).toBe(false);
+      expect(keyOperates(pinning, after.profile, fresh.bitting).plug).toBe(true);
+    }
+
+    const rebuilt = await recordsFor(made.json.workOrderId);
+    expect((await sync(rebuilt.flatMap((r) => [r.completion, r.install]))).json.rejected).toEqual([]);
+    expect((await report(reportId))!.status).toBe('closed');
+    expect((await h.db('keys').where({ id: ax }).first('status')).status).toBe('retired');
+    const tasks = (await h.db('key_reissue_tasks').where({ report_id: reportId }).select('holder_id', 'new_key_id')) as { holder_id: string; new_key_id: string }[];
+    expect(tasks).toEqual([{ holder_id: holder, new_key_id: fresh.id }]);
   });
 });
