@@ -109,10 +109,24 @@ test('a lost change key: reported, its exposure read, the plan made a work order
   await shot(page, 'tasks');
   expect(await smallTargets(page, 48), 'the re-issue tasks page').toEqual([]);
   await page.getByTestId(`task-issue-${holder}`).click();
+  // The holder signs on the screen (here with the mouse) and ticks the terms.
+  await expect(page.getByTestId('reissue-confirm')).toBeDisabled();
+  await expect(page.getByTestId('signature-canvas')).toBeVisible();
+  await page.waitForTimeout(500); // the dialog's opening transition moves the canvas
+  const canvas = await page.getByTestId('signature-canvas').boundingBox();
+  await page.mouse.move(canvas!.x + 40, canvas!.y + 120);
+  await page.mouse.down();
+  for (const [dx, dy] of [[80, -60], [160, 40], [240, -30], [320, 50]] as const) await page.mouse.move(canvas!.x + dx, canvas!.y + 120 + dy, { steps: 5 });
+  await page.mouse.up();
+  await expect(page.getByTestId('signature-field')).toContainText('Signed');
   await page.getByTestId('reissue-accepted').click();
+  await shot(page, 'reissue-form');
   await page.getByTestId('reissue-confirm').click();
   await page.getByTestId('tasks-status').click();
   await page.getByRole('option', { name: 'Done' }).click();
   await expect(page.getByTestId(`task-done-${holder}`)).toContainText('#1');
   await shot(page, 'tasks-done');
+  const { holders } = await apiGet<{ holders: { id: string; name: string }[] }>(page.request, lead, `/api/holders?q=${encodeURIComponent('Ada Quill')}`);
+  const { issues } = await apiGet<{ issues: { keySymbol: string; status: string; acknowledgement: { signed: boolean } }[] }>(page.request, lead, `/api/key-issues?holderId=${holders[0]!.id}`);
+  expect(issues.filter((i) => i.status === 'out').map((i) => [i.keySymbol === 'AB1', i.acknowledgement.signed])).toEqual([[false, true]]);
 });
