@@ -18,9 +18,14 @@ async function pagesOf(page: Page): Promise<string[]> {
   const { keySystems } = await apiGet<{ keySystems: KeySystem[] }>(page.request, admin, '/api/key-systems');
   const { doors } = await apiGet<{ doors: Door[] }>(page.request, admin, '/api/doors');
   const wo = workOrders.find((w) => w.hasFireRated) ?? workOrders[0]!;
+  const { holders } = await apiGet<{ holders: { id: string; keysOut: number }[] }>(page.request, admin, '/api/holders');
+  const holder = holders.find((h) => h.keysOut > 1) ?? holders[0]!;
+  const { issues } = await apiGet<{ issues: { id: string }[] }>(page.request, admin, `/api/key-issues?holderId=${holder.id}`);
   return [
     '/overview', '/work-orders', '/work-orders/new', `/work-orders/${wo.id}`, `/work-orders/${wo.id}/print`, `/work-orders/${wo.id}/tags`,
     '/completions', '/key-systems', `/key-systems/${keySystems[0]!.id}`, '/doors', `/doors/${doors[0]!.id}/history`, '/profiles', '/cautions',
+    '/key-holders', `/key-holders/${holder.id}`, '/key-requests', '/key-requests/new', '/key-issues', '/key-issues?tab=chase', '/key-issues/new',
+    `/key-issues/${issues[0]!.id}/receipt`, `/key-issues/cut-list?issueIds=${issues[0]!.id}`,
   ];
 }
 
