@@ -3,7 +3,7 @@
  * rekey plan and the one step that makes its work order; the re-issue tasks left when the new cores
  * are installed. No answer here carries a bitting.
  */
-import { KeyReportAnswer, KeyReportList, type KeyReportInput } from '@shared/schemas/keyControlExposure';
+import { ExposureAnswer, KeyReportAnswer, KeyReportList, type KeyReportInput } from '@shared/schemas/keyControlExposure';
 import { RekeyPlanAnswer, RekeyWorkOrderDone, type RekeyWorkOrderInput } from '@shared/schemas/keyControlRekey';
 import { ReissueTaskAnswer, ReissueTaskList, type ReissueInput } from '@shared/schemas/keyControlReissue';
 import { toQuery } from './doors';
@@ -24,3 +24,6 @@ export const makeWorkOrder = (id: string, input: RekeyWorkOrderInput) => request
 export const listReissueTasks = async (status?: 'open' | 'done') => (await request('GET', `/api/key-reissue-tasks${toQuery({ status })}`, { schema: ReissueTaskList })).tasks;
 /** Closes the task: the new key issued to the holder (next copy number), the old copy taken back. */
 export const reissueKey = async (id: string, input: ReissueInput) => (await request('POST', `/api/key-reissue-tasks/${id}/issue`, { body: input, schema: ReissueTaskAnswer })).task;
+
+/** What the system's control key removes: every installed core it lines up (a lost control key exposes them all). */
+export const controlExposure = async (keySystemId: string) => (await request('GET', `/api/key-systems/${keySystemId}/control-exposure`, { schema: ExposureAnswer })).exposure;

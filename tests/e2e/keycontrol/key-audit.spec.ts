@@ -4,7 +4,7 @@
 // phone-sized screen; the office sees who has not answered, and the missing key as a lost report.
 // Screenshots: test-results/screenshots/keycontrol-audit-*.png.
 import { expect, test, type Page } from '@playwright/test';
-import { waitForMail } from '../console/api';
+import { apiGet, apiSignIn, waitForMail } from '../console/api';
 import { demo, signIn } from '../support/session';
 import { smallTargets } from '../support/touchTargets';
 import { freshDemo } from '../support/freshDemo';
@@ -17,6 +17,7 @@ test('a key audit: started by the office, answered from the mailed link, the mis
   test.setTimeout(120_000);
   await page.setViewportSize({ width: 1440, height: 900 });
   await signIn(page, demo.supervisor);
+  const lead = await apiSignIn(page.request, demo.supervisor);
   await page.getByRole('link', { name: 'Key audits', exact: true }).click();
   expect(await smallTargets(page, 48), 'the key audits page').toEqual([]);
   await page.getByTestId('campaign-add').click();
@@ -68,6 +69,12 @@ test('a key audit: started by the office, answered from the mailed link, the mis
   await expect(page.getByTestId('report-note-text')).toContainText('key audit campaign');
   await page.getByRole('link', { name: 'Lost keys', exact: true }).click();
   await expect(page.getByTestId('report-row-AB5 #1')).toBeVisible();
+  // Beside the lost copies: what the control key exposes, every installed core of the system (one per door holding a core).
+  const { keySystems } = await apiGet<{ keySystems: { id: string; name: string }[] }>(page.request, lead, '/api/key-systems');
+  const { doors } = await apiGet<{ doors: { currentCoreTag: string | null }[] }>(page.request, lead, '/api/doors');
+  const installed = doors.filter((d) => d.currentCoreTag).length;
+  expect(installed).toBeGreaterThan(0);
+  await expect(page.getByTestId(`control-exposure-${keySystems[0]!.name}`)).toContainText(`removes ${installed} installed cores from their housings, in ${installed} doors`);
   await shot(page, 'lost-keys');
   expect(await smallTargets(page, 48), 'the lost keys page').toEqual([]);
 });
