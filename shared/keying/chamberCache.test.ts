@@ -1,5 +1,5 @@
 import { describe, expect, test } from 'vitest';
-import { chamberKey, profileCache } from './chamberCache';
+import { chamberKey, freezeChamber, profileCache } from './chamberCache';
 import { builtInProfiles } from './profiles';
 import type { Profile } from './types';
 
@@ -44,5 +44,43 @@ describe('chamberKey', () => {
     const seen = new Set<number>();
     for (let i = 0; i < 8; i++) for (let m = 0; m < 1024; m++) for (let c = 0; c < 16; c++) seen.add(chamberKey(i, m, c));
     expect(seen.size).toBe(8 * 1024 * 16);
+  });
+});
+
+describe('profileCache bounds and snapshots (common practice: a cache is bounded and never aliases its source)', () => {
+  test('a cache that reached 50,000 chambers is started afresh; one below that is kept', () => {
+    const p = fresh();
+    const c = profileCache(p);
+    for (let i = 0; i < 49_999; i++) c.entries.set(i, {} as never);
+    expect(profileCache(p)).toBe(c);
+    c.entries.set(49_999, {} as never);
+    const next = profileCache(p);
+    expect(next).not.toBe(c);
+    expect(next.entries.size).toBe(0);
+  });
+
+  test('the stock table describes the sizes as they were checked, not the profile’s live lists', () => {
+    const p = fresh();
+    const c = profileCache(p);
+    const wafers = [...c.stock.profile.wafers];
+    p.wafers.push(25);
+    expect(c.stock.profile.wafers).toEqual(wafers);
+    expect(c.lists[1]).toEqual(wafers);
+    expect(profileCache(p).stock.profile.wafers).toEqual([...wafers, 25]);
+  });
+
+  test('two profiles with the same content keep separate caches', () => {
+    const a = fresh();
+    const b = fresh();
+    expect(profileCache(a)).not.toBe(profileCache(b));
+  });
+});
+
+describe('freezeChamber', () => {
+  test('the chamber and its lists are frozen, and the same object comes back', () => {
+    const ch = { chamber: 1, depths: [2, 4], bottom: 2, masters: [2], buildUp: [12], top: 5, total: 21 };
+    const frozen = freezeChamber(ch);
+    expect(frozen).toBe(ch);
+    for (const part of [frozen, frozen.depths, frozen.masters, frozen.buildUp]) expect(Object.isFrozen(part)).toBe(true);
   });
 });
