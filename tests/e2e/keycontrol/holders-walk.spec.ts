@@ -55,6 +55,16 @@ test('a supervisor keeps the key holders: search, add, import, departments, leav
   await expect(page.getByTestId('holder-status')).toContainText('Active');
   await expect(page.getByTestId('issues-table')).toContainText('No key has been issued');
   await shot(page, 'added');
+  // Edited: a badge id taken by someone else is refused beside the field; then a new e-mail is saved.
+  await page.getByTestId('holder-edit').click();
+  await page.getByTestId('holder-badge').fill('QH-1002');
+  await page.getByTestId('holder-save').click();
+  await expect(page.getByTestId('holder-form')).toContainText('already used');
+  await page.getByTestId('holder-badge').fill('QH-4001');
+  await page.getByTestId('holder-email').fill('iris.f@demo.corewright.test');
+  await page.getByTestId('holder-save').click();
+  await expect(page.getByTestId('holder-form')).toHaveCount(0);
+  await expect(page.locator('.q-card').first()).toContainText('iris.f@demo.corewright.test');
 
   // CSV import: one bad row (a badge id taken) refuses the whole file; fixed, all rows land.
   await page.goto('/key-holders');
@@ -122,6 +132,15 @@ test('a supervisor keeps the key holders: search, add, import, departments, leav
   await expect(page.getByTestId('keys-to-return')).toContainText('1 key to return');
   await expect(page.getByTestId('to-return-AB1 #1')).toBeVisible();
   await shot(page, 'leaving');
+  // Her key comes back; then she is marked gone.
+  await page.getByTestId('return-AB1 #1').click();
+  await page.getByTestId('return-confirm').click();
+  await expect(page.getByTestId('keys-to-return')).toContainText('every key is back');
+  await page.getByTestId('holder-left').click();
+  await expect(page.locator('.q-dialog')).toContainText('Every key is back');
+  await page.getByTestId('holder-left-confirm').click();
+  await expect(page.getByTestId('holder-status')).toHaveText('Left');
+  await expect(page.getByTestId('keys-to-return')).toContainText('is gone');
 
   // Who can open a door: the door of one of Bo's incidental openings if there is one, else any he opens.
   const still = (await apiGet<HolderAccess>(page.request, api, `/api/holders/${bo.id}/access`)).doors;
