@@ -86,6 +86,7 @@ export const actionGroups = [
   { label: 'Users and invitations', value: 'user.' },
   { label: 'Tablets and sync', value: 'device.,sync.' },
   { label: 'Access refused', value: 'access.denied' },
+  { label: 'Key control (holders, requests, issues, lost keys, audits)', value: 'department.,holder.,holders.,key-request.,key.issued,key.returned,key.reported,key.reissued,key-report.,key-campaign.' },
 ] as const;
 
 const whatWords: Record<string, string> = { control: 'the control key', keys: 'the key bittings', charts: 'the pinning charts', 'progression-preview': 'a progression preview' };

@@ -4,6 +4,7 @@
 // token's SHA-256 stored; OWASP Forgot Password Cheat Sheet for the token) with no bitting; a copy
 // flagged missing opens a lost report in the office's queue; the campaign lists who has not answered.
 import { afterAll, beforeAll, describe, expect, test } from 'vitest';
+import { actionGroups } from '../../shared/auditTrailWords';
 import { loadSystem } from '../../server/services/keySystems';
 import { sha256 } from '../../server/services/tokens';
 import { startHarness, type Harness } from './harness';
@@ -117,5 +118,22 @@ describe('the holder answers from the mailed link', () => {
     const made = await h.call('POST', '/api/key-campaign-links/view', { body: { token: 'A'.repeat(43) } });
     expect(made.status).toBe(422);
     expect((await h.db('key_campaign_holders').where({ token_hash: sha256(token) }).first('answered_at')).answered_at).toBeNull();
+  });
+});
+
+describe('a campaign over a key system, and its trail', () => {
+  test('every holder with a copy out of the system and an e-mail is asked, once; the audit trail\'s key control filter finds the campaign and the answers', async () => {
+    const system = (await h.db('key_systems').first('id', 'name')) as { id: string; name: string };
+    const expected = (await h.db('key_issues as i').join('key_holders as h', 'h.id', 'i.holder_id').join('keys as k', 'k.id', 'i.key_id').where({ 'i.status': 'out', 'k.key_system_id': system.id }).whereNotNull('h.email').distinct('h.name')) as { name: string }[];
+    const res = await h.call('POST', '/api/key-campaigns', { token: lead, body: { title: 'Whole campus', keySystemId: system.id } });
+    expect(res.status, res.text).toBe(201);
+    expect(res.json.campaign.scope).toEqual({ kind: 'key-system', name: system.name });
+    expect(res.json.campaign.people.map((p: { name: string }) => p.name).sort()).toEqual(expected.map((e) => e.name).sort());
+    const admin = await h.tokenFor('admin');
+    const group = actionGroups.find((g) => g.label.startsWith('Key control'))!;
+    const trail = await h.call('GET', `/api/audit-events?action=${encodeURIComponent(group.value)}&pageSize=100`, { token: admin });
+    expect(trail.status, trail.text).toBe(200);
+    const actions = new Set((trail.json.rows as { action: string }[]).map((e) => e.action));
+    for (const a of ['key-campaign.started', 'key-campaign.answered', 'key.reported']) expect(actions.has(a), a).toBe(true);
   });
 });
