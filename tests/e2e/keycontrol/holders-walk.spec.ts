@@ -5,9 +5,10 @@
 import { expect, test, type Page } from '@playwright/test';
 import type { DoorAccess, HolderAccess } from '../../../shared/schemas/keyControlExposure';
 import type { HolderList } from '../../../shared/schemas/keyControl';
+import type { Door, Key, KeySystem } from '../../../shared/schemas/records';
 import { demo, signIn } from '../support/session';
 import { smallTargets } from '../support/touchTargets';
-import { apiGet, apiSignIn, csv } from '../console/api';
+import { apiGet, apiSignIn, bearer, csv } from '../console/api';
 import { freshDemo } from '../support/freshDemo';
 
 test.beforeAll(freshDemo);
@@ -153,4 +154,39 @@ test('a supervisor keeps the key holders: search, add, import, departments, leav
   for (const h of access.holders) await expect(page.getByTestId(`door-access-${h.name}`).filter({ hasText: `${h.keySymbol} #${h.copyNumber}` })).toContainText(howWords[h.how]);
   expect(await smallTargets(page, 48)).toEqual([]);
   await shot(page, 'door-access');
+});
+
+test('a key that turns a door only through its master wafers is shown as incidental, on the door and on the holder', async ({ page }) => {
+  test.setTimeout(90_000);
+  const admin = await apiSignIn(page.request, demo.admin);
+  const { keySystems } = await apiGet<{ keySystems: KeySystem[] }>(page.request, admin, '/api/key-systems');
+  const systemId = keySystems[0]!.id;
+  const { keys } = await apiGet<{ keys: Key[] }>(page.request, admin, `/api/key-systems/${systemId}/keys?reveal=1`);
+  // BL-101's core is pinned for AB1, AB and A: AB1's cuts with AB's in chamber 6 meet a shear point in
+  // every chamber without being one of its keys (the keying primer's incidental openings).
+  const ab1 = keys.find((k) => k.symbol === 'AB1')!.bitting!.split('');
+  const ab = keys.find((k) => k.symbol === 'AB')!;
+  const mixed = [...ab1.slice(0, 5), ab.bitting![5], ab1[6]].join('');
+  const added = await page.request.post(`/api/key-systems/${systemId}/keys`, { headers: bearer(admin), data: { symbol: 'ABX', level: 'change', parentId: ab.id, bitting: mixed } });
+  expect(added.status(), await added.text()).toBe(201);
+  const { ids } = (await added.json()) as { ids: string[] };
+  const hal = (await apiGet<HolderList>(page.request, admin, '/api/holders?q=Whitby')).holders[0]!;
+  const issued = await page.request.post('/api/key-issues', { headers: bearer(admin), data: { holderId: hal.id, keyId: ids[0], acknowledgement: { name: 'Hal Whitby', accepted: true } } });
+  expect(issued.status(), await issued.text()).toBe(201);
+  const { doors } = await apiGet<{ doors: Door[] }>(page.request, admin, '/api/doors');
+  const bl101 = doors.find((d) => d.label === 'BL-101')!;
+
+  await signIn(page, demo.supervisor);
+  await page.goto(`/doors/${bl101.id}/history`);
+  await expect(page.getByTestId('door-access-Hal Whitby (demo)')).toContainText('ABX #1');
+  await expect(page.getByTestId('door-access-Hal Whitby (demo)')).toContainText('Incidental: through master wafers');
+  // Incidental holders first; the door's own key and the masters above it after them.
+  await expect(page.getByTestId('door-access-table').locator('tbody tr').first()).toContainText('Hal Whitby (demo)');
+  // (Ada Quill, the door's own key AB1, returned it in the walk above.)
+  await expect(page.getByTestId('door-access-Ada Quill (demo)')).toHaveCount(0);
+  await expect(page.getByTestId('door-access-Eve Sandoval (demo)')).toContainText('Intended: a master above it');
+  await shot(page, 'door-incidental');
+  await page.getByTestId('door-access-Hal Whitby (demo)').getByRole('link').click();
+  await expect(page.getByTestId('access-BL-101')).toContainText('Incidental: through master wafers');
+  await shot(page, 'holder-incidental');
 });
