@@ -2,7 +2,8 @@
  * Closing a lost or stolen key report. It hooks into sync's land step (syncLand.ts), in the same
  * transaction as the installs: once every core of the report's rekey work order is installed (or
  * retired after it), each old key the work order replaced is retired, every holder of a copy of it
- * (copies out, and the reported copy) gets a re-issue task, and the report closes. A replayed
+ * (copies out, and the reported copy) gets a re-issue task, and the report closes, with any other
+ * open report of a copy of the same keys (restored by the same rekey). A replayed
  * install lands nothing, and a closed report is never closed again, so nothing happens twice; the
  * tasks are unique per report and copy as well.
  */
@@ -27,9 +28,11 @@ export async function closeReportsAfterInstalls(trx: Knex.Transaction, coreIds: 
     const replaced = r.new_keys ?? [];
     const newOf = new Map(replaced.map((k) => [k.oldKeyId, k.newKeyId]));
     await trx('keys').whereIn('id', [...newOf.keys()]).update({ status: 'retired', updated_at: trx.fn.now() });
+    // Other copies of these keys reported lost or stolen meanwhile are restored by the same rekey: they close with it.
+    const alongside = (await trx('key_reports as o').join('key_issues as i', 'i.id', 'o.issue_id').whereIn('i.key_id', [...newOf.keys()]).where('o.status', 'open').whereNull('o.work_order_id').whereNot('o.id', r.id).select('o.id', 'o.issue_id')) as { id: string; issue_id: string }[];
     const copies = (await trx('key_issues')
       .whereIn('key_id', [...newOf.keys()])
-      .where((w) => w.where('status', 'out').orWhere('id', r.issue_id))
+      .where((w) => w.where('status', 'out').orWhereIn('id', [r.issue_id, ...alongside.map((o) => o.issue_id)]))
       .select('id', 'holder_id', 'key_id')) as { id: string; holder_id: string; key_id: string }[];
     if (copies.length) {
       await trx('key_reissue_tasks')
@@ -37,9 +40,11 @@ export async function closeReportsAfterInstalls(trx: Knex.Transaction, coreIds: 
         .onConflict(['report_id', 'old_issue_id'])
         .ignore();
     }
-    await trx('key_reports').where({ id: r.id }).update({ status: 'closed', closed_at: trx.fn.now() });
-    await audit(trx, actor, 'key-report.closed', { type: 'key-report', id: r.id }, { workOrder: r.work_order_id, retired: replaced.length, reissue: copies.length });
-    closed.push(r.id);
+    for (const id of [r.id, ...alongside.map((o) => o.id)]) {
+      await trx('key_reports').where({ id }).update({ status: 'closed', closed_at: trx.fn.now() });
+      await audit(trx, actor, 'key-report.closed', { type: 'key-report', id }, { workOrder: r.work_order_id, retired: replaced.length, reissue: copies.length });
+      closed.push(id);
+    }
   }
   return closed;
 }

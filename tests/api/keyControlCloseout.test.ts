@@ -48,13 +48,21 @@ async function report(reportId: string) {
 
 describe('a lost change key: installed, retired, re-issued, closed', () => {
   test('the last install closes the report: the old key retired, a re-issue task for each holder of a copy, once, even when the batch is replayed', async () => {
-    // The demo's open report: Cass's copy of AB7, lost. A second holder has a copy too.
+    // The demo's open report: Cass's copy of AB7, lost. Two more holders have a copy.
     const reportId = (await h.db('key_reports').first('id')).id as string;
     const ab7 = await keyIdOf('AB7');
     const other = (await h.call('POST', '/api/holders', { token: lead, body: { name: 'Second AB7 holder (demo)', department: 'Library Services' } })).json.holder.id;
     const otherIssue = (await h.call('POST', '/api/key-issues', { token: lead, body: { holderId: other, keyId: ab7, acknowledgement: ack } })).json.issue;
+    const third = (await h.call('POST', '/api/holders', { token: lead, body: { name: 'Third AB7 holder (demo)', department: 'Library Services' } })).json.holder.id;
+    const thirdCopy = (await h.call('POST', '/api/key-issues', { token: lead, body: { holderId: third, keyId: ab7, acknowledgement: ack } })).json.issue.id as string;
     const made = await h.call('POST', `/api/key-reports/${reportId}/work-order`, { token: lead, body: { assigneeId: techId } });
     expect(made.status, made.text).toBe(201);
+    // The third copy is reported stolen while the rekey is under way: no second rekey; it closes with the first.
+    const second = await h.call('POST', `/api/key-issues/${thirdCopy}/report`, { token: lead, body: { kind: 'stolen' } });
+    expect(second.status, second.text).toBe(200);
+    const refused = await h.call('POST', `/api/key-reports/${second.json.report.id}/work-order`, { token: lead, body: {} });
+    expect(refused.status).toBe(409);
+    expect(refused.json.error.message).toMatch(/being rekeyed already by work order #\d+/);
     const recs = await recordsFor(made.json.workOrderId);
     expect(recs.length).toBeGreaterThan(0);
 
@@ -77,7 +85,8 @@ describe('a lost change key: installed, retired, re-issued, closed', () => {
     expect(system.keys.find((k) => k.id === ab7)!.status).toBe('retired');
     const tasks = (await h.call('GET', '/api/key-reissue-tasks?status=open', { token: lead })).json.tasks as { id: string; holderName: string; oldKeySymbol: string; oldCopyStatus: string; newKeySymbol: string; newKeyId: string }[];
     const mine = tasks.filter((t) => t.oldKeySymbol === 'AB7');
-    expect(mine.map((t) => [t.holderName, t.oldCopyStatus]).sort()).toEqual([['Cass Moreno (demo)', 'lost'], ['Second AB7 holder (demo)', 'out']]);
+    expect(mine.map((t) => [t.holderName, t.oldCopyStatus]).sort()).toEqual([['Cass Moreno (demo)', 'lost'], ['Second AB7 holder (demo)', 'out'], ['Third AB7 holder (demo)', 'stolen']]);
+    expect((await report(second.json.report.id))!.status).toBe('closed');
     expect(new Set(mine.map((t) => t.newKeySymbol))).toEqual(new Set([made.json.newKeySymbol]));
     // No bitting in the tasks.
     for (const b of [system.control, ...system.keys.map((k) => k.bitting)]) expect(JSON.stringify(tasks).includes(b)).toBe(false);
@@ -87,8 +96,8 @@ describe('a lost change key: installed, retired, re-issued, closed', () => {
     expect(again.json.accepted).toEqual([]);
     expect(again.json.duplicates).toEqual([last!.install.clientId]);
     expect(await report(reportId)).toEqual(closed);
-    expect(Number((await h.db('key_reissue_tasks').where({ report_id: reportId }).count({ n: '*' }).first())!.n)).toBe(2);
-    expect(Number((await h.db('audit_events').where({ action: 'key-report.closed', target_id: reportId }).count({ n: '*' }).first())!.n)).toBe(1);
+    expect(Number((await h.db('key_reissue_tasks').where({ report_id: reportId }).count({ n: '*' }).first())!.n)).toBe(3);
+    expect(Number((await h.db('audit_events').where({ action: 'key-report.closed' }).whereIn('target_id', [reportId, second.json.report.id]).count({ n: '*' }).first())!.n)).toBe(2);
 
     // The office closes a task by issuing the new key; the old copy still out comes back.
     const task = mine.find((t) => t.oldCopyStatus === 'out')!;
