@@ -141,6 +141,14 @@ test('a request mailed to the authoriser, approved from the link, then the key i
   await expect(page.getByTestId('receipt-signature')).toContainText('Typed and accepted on screen');
   await noBitting(page, bittings);
   await shot(page, 'receipt');
+  // On paper: the receipt alone, on one page (no menu, header, notice or buttons).
+  await page.emulateMedia({ media: 'print' });
+  await expect(page.getByTestId('receipt')).toBeVisible();
+  for (const hidden of ['.q-header', '.q-drawer', '[data-test="receipt-issued"]', '[data-test="print"]']) await expect(page.locator(hidden)).toBeHidden();
+  const pdf = await page.pdf({ format: 'A4' });
+  expect(pdf.toString('latin1').match(/\/Type\s*\/Page[^s]/g)).toHaveLength(1);
+  await shot(page, 'receipt-print');
+  await page.emulateMedia({ media: 'screen' });
 
   // The cut list: nothing restricted until "Show", which the audit trail records.
   const before = (await apiGet<{ total: number }>(page.request, admin, '/api/audit-events?action=bittings.')).total;
