@@ -23,7 +23,15 @@ export async function closeReportsAfterInstalls(trx: Knex.Transaction, coreIds: 
     .select('r.id', 'r.issue_id', 'r.work_order_id', 'r.new_keys')) as { id: string; issue_id: string; work_order_id: string; new_keys: Replaced[] | null }[];
   const closed: string[] = [];
   for (const r of reports) {
-    const waiting = await trx('work_order_cores as x').join('cores as c', 'c.id', 'x.core_id').where('x.work_order_id', r.work_order_id).whereNotIn('c.state', ['installed', 'retired']).first('c.id');
+    // Every core of the work order went into its door (installed now, or retired by a later install); a cancelled
+    // work order restores nothing, and a core it released (retired unbuilt) was never installed.
+    const wo = await trx('work_orders').where({ id: r.work_order_id }).first('status');
+    if (wo?.status === 'cancelled') continue;
+    const waiting = await trx('work_order_cores as x')
+      .join('cores as c', 'c.id', 'x.core_id')
+      .where('x.work_order_id', r.work_order_id)
+      .where((w) => w.whereNot('c.state', 'retired').whereNot('c.state', 'installed').orWhere((o) => o.where('c.state', 'retired').whereNotExists(trx('installs as n').whereRaw('n.core_id = c.id'))))
+      .first('c.id');
     if (waiting) continue;
     const replaced = r.new_keys ?? [];
     const newOf = new Map(replaced.map((k) => [k.oldKeyId, k.newKeyId]));

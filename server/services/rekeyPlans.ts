@@ -208,7 +208,8 @@ async function computePlan(db: Knex, sealer: Sealer, reportId: string): Promise<
     incidentalCores,
     copiesToReissue: copies,
     choices: choices.map((c) => ({ option: c.option, description: words[c.option][0], coresToBuild: n, keysToReissue: words[c.option][1], blocked: c.blocked })),
-    workOrderId: report.work_order_id,
+    // A cancelled work order is as good as none: the plan offers the step again (replanCancelled).
+    workOrderId: report.work_order_id && (await db('work_orders').where({ id: report.work_order_id }).first('status'))?.status !== 'cancelled' ? report.work_order_id : null,
     chosen: report.rekey_option,
   };
   return { plan, choices, system, cores };
@@ -241,10 +242,14 @@ async function applyRecipe(db: Knex, sealer: Sealer, system: LoadedSystem, lost:
 
 /** One step: the chosen option's keys in place of the old ones, and a work order for the cores the lost key is pinned into. */
 export async function planToWorkOrder(db: Knex, sealer: Sealer, reportId: string, input: RekeyWorkOrderInput, by: string): Promise<{ workOrderId: string; newKeyId: string; newKeySymbol: string }> {
-  const report = await db('key_reports').where({ id: reportId }).forUpdate().first('status', 'work_order_id');
+  const report = await db('key_reports').where({ id: reportId }).forUpdate().first('status', 'work_order_id', 'new_keys');
   if (!report) throw notFound('That key report');
   if (report.status !== 'open') throw conflict('This report is closed.', [{ field: 'reportId', message: 'closed' }]);
-  if (report.work_order_id) throw conflict('This report has its work order already.', [{ field: 'reportId', message: 'work order exists' }]);
+  if (report.work_order_id) {
+    const wo = await db('work_orders').where({ id: report.work_order_id }).first('status', 'number');
+    if (wo?.status !== 'cancelled') throw conflict(`This report has its work order already (#${wo?.number}).`, [{ field: 'reportId', message: 'work order exists' }]);
+    return replanCancelled(db, sealer, reportId, report.new_keys as { oldKeyId: string; newKeyId: string }[], input, by);
+  }
   const { plan, choices, system, cores } = await computePlan(db, sealer, reportId);
   const lost = system.keys.find((k) => k.id === plan.lostKey.id)!;
   // Another copy of the same key reported earlier may have its rekey under way already: this report closes with it.
@@ -257,14 +262,32 @@ export async function planToWorkOrder(db: Knex, sealer: Sealer, reportId: string
   const symbol = (input.newKeySymbol ?? choice.recipe.add[0]!.symbol).toUpperCase();
   const newOf = await applyRecipe(db, sealer, system, lost, choice.recipe, symbol);
   const newMaster = newOf.get(lost.id)!;
-  // Each core is rebuilt for its door's key (now its new key) and keeps a cross key it had.
+  const wo = await rekeyWorkOrder(db, sealer, system.id, cores, newOf, `Lost key ${plan.lostKey.symbol}: ${choice.option === 're-master' ? 're-master' : 'rekey'} to ${symbol}`, plan.lostKey.symbol, input, by);
+  const newKeys = [...newOf].map(([oldKeyId, newKeyId]) => ({ oldKeyId, newKeyId }));
+  await db('key_reports').where({ id: reportId }).update({ work_order_id: wo.id, rekey_option: choice.option, new_keys: JSON.stringify(newKeys) });
+  return { workOrderId: wo.id, newKeyId: newMaster, newKeySymbol: symbol };
+}
+
+/** The work order of a rekey: each core rebuilt for its door's key (or that key's new key), keeping a cross key it had. */
+async function rekeyWorkOrder(db: Knex, sealer: Sealer, systemId: string, cores: InstalledCore[], newOf: Map<string, string>, title: string, lostSymbol: string, input: RekeyWorkOrderInput, by: string) {
   const doors: WorkOrderDoor[] = cores.flatMap((c) => {
     if (!c.doorId || !c.doorKeyId) return [];
     const crossKeyId = c.crossKeyId ? (newOf.get(c.crossKeyId) ?? c.crossKeyId) : null;
     return [{ doorId: c.doorId, keyId: newOf.get(c.doorKeyId) ?? c.doorKeyId, ...(crossKeyId ? { crossKeyId } : {}) }];
   });
-  const wo = await createWorkOrder(db, sealer, { title: `Lost key ${plan.lostKey.symbol}: ${choice.option === 're-master' ? 're-master' : 'rekey'} to ${symbol}`, purpose: 'lost-key-rekey', keySystemId: system.id, assigneeId: input.assigneeId ?? null, dueDate: input.dueDate ?? null, notes: `Key report: ${plan.lostKey.symbol} reported lost or stolen. Return the removed cores to the shop.`, doors }, by);
-  const newKeys = [...newOf].map(([oldKeyId, newKeyId]) => ({ oldKeyId, newKeyId }));
-  await db('key_reports').where({ id: reportId }).update({ work_order_id: wo.id, rekey_option: choice.option, new_keys: JSON.stringify(newKeys) });
-  return { workOrderId: wo.id, newKeyId: newMaster, newKeySymbol: symbol };
+  return createWorkOrder(db, sealer, { title, purpose: 'lost-key-rekey', keySystemId: systemId, assigneeId: input.assigneeId ?? null, dueDate: input.dueDate ?? null, notes: `Key report: ${lostSymbol} reported lost or stolen. Return the removed cores to the shop.`, doors }, by);
+}
+
+/**
+ * Its work order was cancelled: the new keys stay (they are in place, the doors take them), and a new
+ * work order rebuilds the cores still pinned for the old keys.
+ */
+async function replanCancelled(db: Knex, sealer: Sealer, reportId: string, replaced: { oldKeyId: string; newKeyId: string }[], input: RekeyWorkOrderInput, by: string) {
+  const { plan, system, cores } = await computePlan(db, sealer, reportId);
+  const newOf = new Map(replaced.map((k) => [k.oldKeyId, k.newKeyId]));
+  const fresh = system.keys.find((k) => k.id === newOf.get(plan.lostKey.id))!;
+  if (!cores.length) throw conflict(`No installed core is pinned for ${plan.lostKey.symbol} any more: there is nothing to rebuild.`, [{ field: 'reportId', message: 'no cores' }]);
+  const wo = await rekeyWorkOrder(db, sealer, system.id, cores, newOf, `Lost key ${plan.lostKey.symbol}: rekey to ${fresh.symbol} (again)`, plan.lostKey.symbol, input, by);
+  await db('key_reports').where({ id: reportId }).update({ work_order_id: wo.id });
+  return { workOrderId: wo.id, newKeyId: fresh.id, newKeySymbol: fresh.symbol };
 }

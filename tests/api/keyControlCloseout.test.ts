@@ -183,3 +183,29 @@ describe('a lost master keyed straight to its doors: re-mastered', () => {
     expect(tasks).toEqual([{ holder_id: holder, new_key_id: fresh.id }]);
   });
 });
+
+describe('a rekey work order cancelled', () => {
+  test('nothing closes; the report offers the step again and a new work order rebuilds the cores for the same new key; installed, it closes', async () => {
+    // A change key in use: pinned into an installed core (the tests above rekeyed AB's branch, so ask the records).
+    const key = (await h.db('core_keys as ck').join('cores as c', 'c.id', 'ck.core_id').join('keys as k', 'k.id', 'ck.key_id').where({ 'c.state': 'installed', 'k.level': 'change', 'k.status': 'active' }).orderBy('k.symbol').first('k.id')).id as string;
+    const holder = (await h.call('POST', '/api/holders', { token: lead, body: { name: 'Change key holder (demo)', department: 'Facilities' } })).json.holder.id;
+    const issue = (await h.call('POST', '/api/key-issues', { token: lead, body: { holderId: holder, keyId: key, acknowledgement: ack } })).json.issue;
+    const reportId = (await h.call('POST', `/api/key-issues/${issue.id}/report`, { token: lead, body: { kind: 'lost' } })).json.report.id;
+    const made = await h.call('POST', `/api/key-reports/${reportId}/work-order`, { token: lead, body: { assigneeId: techId } });
+    expect(made.status, made.text).toBe(201);
+    expect((await h.call('POST', `/api/key-reports/${reportId}/work-order`, { token: lead, body: {} })).status).toBe(409);
+    const cancel = await h.call('PATCH', `/api/work-orders/${made.json.workOrderId}`, { token: lead, body: { status: 'cancelled' } });
+    expect(cancel.status, cancel.text).toBe(200);
+    expect((await report(reportId))!.status).toBe('open');
+    expect((await h.call('GET', `/api/key-reports/${reportId}/plan`, { token: lead })).json.plan.workOrderId).toBeNull();
+
+    const again = await h.call('POST', `/api/key-reports/${reportId}/work-order`, { token: lead, body: { assigneeId: techId } });
+    expect(again.status, again.text).toBe(201);
+    expect(again.json.workOrderId).not.toBe(made.json.workOrderId);
+    expect([again.json.newKeyId, again.json.newKeySymbol]).toEqual([made.json.newKeyId, made.json.newKeySymbol]);
+    const recs = await recordsFor(again.json.workOrderId);
+    expect((await sync(recs.flatMap((r) => [r.completion, r.install]))).json.rejected).toEqual([]);
+    expect((await report(reportId))!.status).toBe('closed');
+    expect((await h.db('keys').where({ id: key }).first('status')).status).toBe('retired');
+  });
+});
