@@ -80,7 +80,7 @@ try {
     results.push({ step: 'e2e', ok: built && run('e2e', 'npx', ['playwright', 'test', ...filters], env) });
   }
 } catch (err) {
-  console.error(`[test] ${(err as Error).stack ?? err}`);
+  console.error('[test]', (err as Error).stack ?? err);
   results.push({ step: 'setup', ok: false });
 } finally {
   cleanup();

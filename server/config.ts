@@ -64,7 +64,7 @@ export function trustProxyOf(value: string | undefined): boolean | number | stri
 }
 
 export function loadConfig(env: NodeJS.ProcessEnv = process.env): Config {
-  const mode = (env.NODE_ENV === 'production' || env.NODE_ENV === 'test' ? env.NODE_ENV : 'development') as Config['env'];
+  const mode = env.NODE_ENV === 'production' || env.NODE_ENV === 'test' ? env.NODE_ENV : 'development';
   if (!env.DATABASE_URL) throw new Error('DATABASE_URL is not set (npm start and npm test set it for you)');
   const secretsFile = env.CW_SECRETS_FILE ?? path.join(root, '.data', 'secrets.json');
   const needFile = !env.CW_JWT_SECRET || !env.CW_DATA_KEY;

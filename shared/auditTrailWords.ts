@@ -109,6 +109,7 @@ function words(key: string, v: Value, nameOf: NameOf): string | null {
     return inner.length ? `${key}: ${inner.join('; ')}` : null;
   }
   if (typeof v === 'boolean') return `${key}: ${v ? 'yes' : 'no'}`;
+  if (typeof v !== 'string' && typeof v !== 'number') return null; // details are JSON: nothing else reaches here
   const s = String(v);
   // A record's id is never shown bare: its name, or that it is gone.
   if (/^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i.test(s)) return `${key}: ${nameOf(s) ?? '(no longer on record)'}`;
@@ -133,7 +134,7 @@ export function detailLine(action: string, details: Record<string, Value> | null
     delete d.released;
   }
   if ('assigneeId' in d) {
-    if (d.assigneeId) parts.push(`assigned to ${nameOf(String(d.assigneeId)) ?? 'a user'}`);
+    if (d.assigneeId) parts.push(`assigned to ${(typeof d.assigneeId === 'string' ? nameOf(d.assigneeId) : undefined) ?? 'a user'}`);
     delete d.assigneeId;
   }
   for (const [k, v] of Object.entries(d)) {

@@ -32,7 +32,7 @@ export async function seedKeyControl(trx: Knex, sealer: Sealer, systemId: string
     deptId.set(d.name, row.id);
     await trx('department_authorisers').insert(d.authorisers.map((a) => ({ department_id: row.id, ...a })));
   }
-  const keyId = new Map(((await trx('keys').where({ key_system_id: systemId }).select('id', 'symbol')) as { id: string; symbol: string }[]).map((k) => [k.symbol, k.id]));
+  const keyId = new Map((await trx('keys').where({ key_system_id: systemId }).select<{ id: string; symbol: string }[]>('id', 'symbol')).map((k) => [k.symbol, k.id]));
   const copies = new Map<string, number>();
   const day = 86400_000;
   let lostIssue: { id: string; keyId: string } | null = null;

@@ -33,7 +33,9 @@ interface Row {
 function auditQuery(db: Knex, f: AuditFilter) {
   const q = db('audit_events as e').leftJoin('users as u', 'u.id', 'e.actor_id');
   const prefixes = (f.action ?? '').split(',').map((p) => p.trim()).filter(Boolean);
-  if (prefixes.length) q.where((w) => prefixes.forEach((p) => w.orWhere('e.action', 'like', `${p.replace(/[%_\\]/g, (c) => `\\${c}`)}%`)));
+  if (prefixes.length) q.where((w) => {
+    for (const p of prefixes) w.orWhere('e.action', 'like', `${p.replace(/[%_\\]/g, (c) => `\\${c}`)}%`);
+  });
   if (f.actorId) q.where('e.actor_id', f.actorId);
   if (f.targetId) q.where('e.target_id', f.targetId);
   whereDays(db, q, 'e.at', f);
@@ -111,7 +113,7 @@ async function readable(db: Knex, rows: Row[]): Promise<ReadableEvent[]> {
 /** One page of the filtered trail, newest first, with the total the filter matches. */
 export async function listAuditEvents(db: Knex, q: AuditQuery): Promise<AuditPage> {
   const base = auditQuery(db, q);
-  const { total } = ((await base.clone().count({ total: '*' })) as { total: number }[])[0]!;
+  const { total } = (await base.clone().count<{ total: number }[]>({ total: '*' }))[0]!;
   const rows = await base
     .orderBy('e.id', 'desc')
     .limit(q.pageSize)

@@ -42,7 +42,11 @@ function filtered(db: Knex, q: Knex.QueryBuilder, f: Filter) {
   if (f.coreId) q.where('cp.core_id', f.coreId);
   if (f.result) q.where('cp.result', f.result);
   // A core that failed a key check in any completion, even one it passed later after a rebuild.
-  if (f.hadFailedCheck === '1') q.whereExists((x) => x.select(db.raw('1')).from('completions as f').whereRaw('f.core_id = cp.core_id').where((w) => w.where('f.result', 'failed').orWhere('f.failed_checks', '>', 0)));
+  if (f.hadFailedCheck === '1') q.whereExists((x) => {
+    x.select(db.raw('1')).from('completions as f').whereRaw('f.core_id = cp.core_id').where((w) => {
+      w.where('f.result', 'failed').orWhere('f.failed_checks', '>', 0);
+    });
+  });
   whereDays(db, q, 'cp.finished_at', f);
   return q;
 }
@@ -118,7 +122,7 @@ export async function getCompletion(db: Knex, id: string) {
     .orderBy([{ column: 'i.installed_at', order: 'desc' }, { column: 'i.received_at', order: 'desc' }])
     .first('i.id', 'i.door_id as doorId', 'd.label as doorLabel', 'i.installed_at as installedAt', 'u.name as installedBy', 'i.removed_core_tag as removedCoreTag', 'i.notes', 'i.door_mismatch as doorMismatch', 'i.mismatch_reason as mismatchReason', 'pd.label as plannedDoorLabel', 'i.reviewed_at as reviewedAt', 'r.name as reviewedBy');
   // The level of each key of the core's system by symbol, so the detail names a master as the Bench does ("Grand master").
-  const levels = (await db('keys as k').join('cores as c', 'c.key_system_id', 'k.key_system_id').where('c.id', row.coreId).select('k.symbol', 'k.level')) as { symbol: string; level: KeyLevel }[];
+  const levels = await db('keys as k').join('cores as c', 'c.key_system_id', 'k.key_system_id').where('c.id', row.coreId).select<{ symbol: string; level: KeyLevel }[]>('k.symbol', 'k.level');
   return {
     ...isoRow(row),
     keyLevels: Object.fromEntries(levels.map((k) => [k.symbol, k.level])),
@@ -128,7 +132,7 @@ export async function getCompletion(db: Knex, id: string) {
 
 /** The attempts with their pin sizes opened: the caller checks the role and audits the read. */
 export async function revealPinSizes(db: Knex, sealer: Sealer, id: string) {
-  const row = (await db('completions').where({ id }).first('attempts', 'pin_sizes_enc')) as { attempts: { steps: { size: number | null }[] }[]; pin_sizes_enc: string | null } | undefined;
+  const row = await db('completions').where({ id }).first<{ attempts: { steps: { size: number | null }[] }[]; pin_sizes_enc: string | null } | undefined>('attempts', 'pin_sizes_enc');
   if (!row) throw notFound('That completion');
   return openPinSizes(sealer, id, row.attempts, row.pin_sizes_enc);
 }

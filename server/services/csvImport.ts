@@ -43,7 +43,7 @@ function readCsv(buffer: Buffer, required: string[], known: string[]): CsvRow[] 
   let records: CsvRow[];
   let header: string[];
   try {
-    const parsed = parseCsv(buffer, { columns: (h: string[]) => h.map((c) => c.trim().toLowerCase().replace(/[\s-]+/g, '_')), skip_empty_lines: true, comment: '#', comment_no_infix: true, trim: true, bom: true, max_record_size: 4096, info: true }) as { record: Record<string, string>; info: { lines: number } }[];
+    const parsed: { record: Record<string, string>; info: { lines: number } }[] = parseCsv(buffer, { columns: (h: string[]) => h.map((c) => c.trim().toLowerCase().replace(/[\s-]+/g, '_')), skip_empty_lines: true, comment: '#', comment_no_infix: true, trim: true, bom: true, max_record_size: 4096, info: true });
     records = parsed.map(({ record, info }) => ({ ...record, __row: info.lines }) as CsvRow);
     header = headerOf(buffer);
   } catch (err) {
@@ -80,7 +80,7 @@ function cellProblems(records: CsvRow[]): { errors: RowError[]; bad: Set<number>
 }
 
 function headerOf(buffer: Buffer): string[] {
-  const first = parseCsv(buffer, { to: 1, bom: true, trim: true, skip_empty_lines: true, comment: '#', comment_no_infix: true, relax_column_count: true }) as string[][];
+  const first: string[][] = parseCsv(buffer, { to: 1, bom: true, trim: true, skip_empty_lines: true, comment: '#', comment_no_infix: true, relax_column_count: true });
   return (first[0] ?? []).map((c) => c.trim().toLowerCase().replace(/[\s-]+/g, '_'));
 }
 

@@ -39,7 +39,9 @@ export async function listDoors(db: Knex, f: DoorFilter): Promise<Door[]> {
   const q = doorQuery(db);
   if (f.q) {
     const like = `%${f.q.replace(/[%_\\]/g, (c) => `\\${c}`)}%`;
-    q.where((w) => w.whereILike('d.label', like).orWhereILike('d.room', like).orWhereILike('d.building', like));
+    q.where((w) => {
+      w.whereILike('d.label', like).orWhereILike('d.room', like).orWhereILike('d.building', like);
+    });
   }
   if (f.building) q.where('d.building', f.building);
   if (f.fireRated !== undefined) q.where('d.fire_rated', f.fireRated);

@@ -84,10 +84,10 @@ export function sharedFailureLimiter(db: Knex, limit: number, windowMs: number, 
       const here = local.lockedFor(key);
       let shared = 0;
       try {
-        const row = (await db('sign_in_failures')
+        const row = await db('sign_in_failures')
           .where({ key_hash: hashOf(key) })
           .where('reset_at', '>', db.fn.now())
-          .first('failures', db.raw('ceil(extract(epoch from reset_at - now()))::int as seconds'))) as { failures: number; seconds: number } | undefined;
+          .first<{ failures: number; seconds: number } | undefined>('failures', db.raw('ceil(extract(epoch from reset_at - now()))::int as seconds'));
         if (row && row.failures >= limit) shared = Math.max(1, row.seconds);
       } catch (err) {
         if (!isDatabaseUnavailable(err)) throw err;

@@ -34,7 +34,7 @@ export async function openMismatches(db: Knex): Promise<InstallMismatch[]> {
  * went into its planned door. True when this call marked it (false: it was reviewed already).
  */
 export async function markMismatchReviewed(db: Knex, id: string, userId: string): Promise<boolean> {
-  const row = (await db('installs').where({ id }).first('door_mismatch', 'reviewed_at')) as { door_mismatch: boolean; reviewed_at: Date | null } | undefined;
+  const row = await db('installs').where({ id }).first<{ door_mismatch: boolean; reviewed_at: Date | null } | undefined>('door_mismatch', 'reviewed_at');
   if (!row) throw notFound('That install');
   if (!row.door_mismatch) throw badRequest('This install went into its planned door: there is nothing to review.');
   if (row.reviewed_at) return false;

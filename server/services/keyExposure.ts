@@ -23,8 +23,8 @@ interface InstalledCore {
 export async function installedCores(db: Knex, systemId: string, doorId?: string): Promise<InstalledCore[]> {
   const q = db('cores as c').leftJoin('doors as d', 'd.id', 'c.door_id').where({ 'c.key_system_id': systemId, 'c.state': 'installed' });
   if (doorId) q.where('c.door_id', doorId);
-  const cores = (await q.select('c.id', 'c.tag', 'd.id as doorId', 'd.label as doorLabel')) as Omit<InstalledCore, 'operating'>[];
-  const links = (await db('core_keys').whereIn('core_id', doorId ? cores.map((c) => c.id) : db('cores').where({ key_system_id: systemId, state: 'installed' }).select('id')).select('core_id', 'key_id')) as { core_id: string; key_id: string }[];
+  const cores = await q.select<Omit<InstalledCore, 'operating'>[]>('c.id', 'c.tag', 'd.id as doorId', 'd.label as doorLabel');
+  const links = await db('core_keys').whereIn('core_id', doorId ? cores.map((c) => c.id) : db('cores').where({ key_system_id: systemId, state: 'installed' }).select('id')).select<{ core_id: string; key_id: string }[]>('core_id', 'key_id');
   const byCore = new Map<string, string[]>();
   for (const l of links) {
     const list = byCore.get(l.core_id);
@@ -94,12 +94,12 @@ export async function doorAccess(db: Knex, sealer: Sealer, doorId: string): Prom
   if (!core) return { coreId: null, coreTag: null, holders: [] };
   const system = await loadSystem(db, sealer, core.key_system_id);
   const [installed] = await installedCores(db, system.id, doorId);
-  const issues = (await db('key_issues as i')
+  const issues = await db('key_issues as i')
     .join('key_holders as h', 'h.id', 'i.holder_id')
     .join('departments as d', 'd.id', 'h.department_id')
     .join('keys as k', 'k.id', 'i.key_id')
     .where({ 'k.key_system_id': system.id, 'i.status': 'out' })
-    .select('i.id as issueId', 'h.id as holderId', 'h.name', 'd.name as department', 'k.id as keyId', 'k.symbol as keySymbol', 'i.copy_number as copyNumber')) as Omit<DoorAccess['holders'][number], 'how'>[];
+    .select<Omit<DoorAccess['holders'][number], 'how'>[]>('i.id as issueId', 'h.id as holderId', 'h.name', 'd.name as department', 'k.id as keyId', 'k.symbol as keySymbol', 'i.copy_number as copyNumber');
   const holders: DoorAccess['holders'] = [];
   const howOf = new Map<string, ExposedCore['how'] | null>();
   for (const issue of issues) {
@@ -117,7 +117,7 @@ export async function doorAccess(db: Knex, sealer: Sealer, doorId: string): Prom
 /** Every door the holder's copies out turn or remove, key by key. */
 export async function holderAccess(db: Knex, sealer: Sealer, holderId: string): Promise<HolderAccess> {
   if (!(await db('key_holders').where({ id: holderId }).first('id'))) throw notFound('That key holder');
-  const issues = (await db('key_issues as i').join('keys as k', 'k.id', 'i.key_id').where({ 'i.holder_id': holderId, 'i.status': 'out' }).orderBy(['k.symbol', 'i.copy_number']).select('i.id as issueId', 'k.id as keyId', 'k.symbol as keySymbol', 'k.key_system_id as systemId', 'i.copy_number as copyNumber')) as { issueId: string; keyId: string; keySymbol: string; systemId: string; copyNumber: number }[];
+  const issues = await db('key_issues as i').join('keys as k', 'k.id', 'i.key_id').where({ 'i.holder_id': holderId, 'i.status': 'out' }).orderBy(['k.symbol', 'i.copy_number']).select<{ issueId: string; keyId: string; keySymbol: string; systemId: string; copyNumber: number }[]>('i.id as issueId', 'k.id as keyId', 'k.symbol as keySymbol', 'k.key_system_id as systemId', 'i.copy_number as copyNumber');
   const doors: HolderAccess['doors'] = [];
   const systems = new Map<string, { system: LoadedSystem; cores: InstalledCore[] }>();
   for (const issue of issues) {

@@ -10,7 +10,7 @@ export async function listDepartments(db: Knex, id?: string): Promise<Department
   const q = db('departments as d').select('d.id', 'd.name', db.raw('(select count(*) from key_holders h where h.department_id = d.id)::int as "holderCount"'));
   if (id) q.where('d.id', id);
   const rows = (await q) as { id: string; name: string; holderCount: number }[];
-  const people = (await db('department_authorisers').whereIn('department_id', rows.map((r) => r.id)).orderBy('name').select('id', 'department_id', 'name', 'email')) as { id: string; department_id: string; name: string; email: string }[];
+  const people = await db('department_authorisers').whereIn('department_id', rows.map((r) => r.id)).orderBy('name').select<{ id: string; department_id: string; name: string; email: string }[]>('id', 'department_id', 'name', 'email');
   return rows
     .map((r) => ({ ...r, authorisers: people.filter((p) => p.department_id === r.id).map(({ id: pid, name, email }) => ({ id: pid, name, email })) }))
     .sort((a, b) => naturalCompare(a.name, b.name));
@@ -70,7 +70,9 @@ export async function listHolders(db: Knex, f: HolderQuery): Promise<Holder[]> {
   const q = holderQuery(db);
   if (f.q) {
     const like = `%${f.q.replace(/[%_\\]/g, (c) => `\\${c}`)}%`;
-    q.where((w) => w.whereILike('h.name', like).orWhereILike('h.email', like).orWhereILike('h.badge_id', like).orWhereILike('d.name', like));
+    q.where((w) => {
+      w.whereILike('h.name', like).orWhereILike('h.email', like).orWhereILike('h.badge_id', like).orWhereILike('d.name', like);
+    });
   }
   if (f.departmentId) q.where('h.department_id', f.departmentId);
   if (f.status) q.where('h.status', f.status);

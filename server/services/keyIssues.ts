@@ -124,7 +124,9 @@ export async function returnKey(db: Knex, id: string, by: string): Promise<void>
 export async function outstandingKeys(db: Knex): Promise<OutstandingKeys['issues']> {
   const rows = (await issueQuery(db)
     .where('i.status', 'out')
-    .where((w) => w.where('i.due_date', '<', db.raw('current_date')).orWhereIn('h.status', ['leaving', 'left']))
+    .where((w) => {
+      w.where('i.due_date', '<', db.raw('current_date')).orWhereIn('h.status', ['leaving', 'left']);
+    })
     .orderBy([{ column: 'h.name' }, { column: 'k.symbol' }, { column: 'i.copy_number' }])) as IssueRow[];
   return rows.map((r) => {
     const issue = issueOf(r);
@@ -134,7 +136,7 @@ export async function outstandingKeys(db: Knex): Promise<OutstandingKeys['issues
 
 /** Per key, the copies to cut with the bitting (restricted: the route allows and audits). */
 export async function cutList(db: Knex, sealer: Sealer, issueIds: string[]): Promise<CutList['cutList']> {
-  const rows = (await db('key_issues as i').join('keys as k', 'k.id', 'i.key_id').whereIn('i.id', issueIds).orderBy([{ column: 'k.symbol' }, { column: 'i.copy_number' }]).select('i.id', 'k.id as keyId', 'k.symbol', 'k.bitting_enc', 'i.copy_number')) as { id: string; keyId: string; symbol: string; bitting_enc: string; copy_number: number }[];
+  const rows = await db('key_issues as i').join('keys as k', 'k.id', 'i.key_id').whereIn('i.id', issueIds).orderBy([{ column: 'k.symbol' }, { column: 'i.copy_number' }]).select<{ id: string; keyId: string; symbol: string; bitting_enc: string; copy_number: number }[]>('i.id', 'k.id as keyId', 'k.symbol', 'k.bitting_enc', 'i.copy_number');
   const missing = issueIds.filter((id) => !rows.some((r) => r.id === id));
   if (missing.length) throw badRequest(`No key issue ${missing[0]}.`, [{ field: 'issueIds', message: `unknown issue ${missing[0]}` }]);
   const byKey = new Map<string, CutList['cutList'][number]>();

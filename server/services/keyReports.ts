@@ -1,6 +1,6 @@
 /** Lost and stolen key copies: the report keeps the exposure as computed when it was made. */
 import type { Knex } from 'knex';
-import type { Exposure, KeyReport, KeyReportInput, KeyReportList } from '../../shared/schemas/keyControlExposure';
+import type { KeyReport, KeyReportInput, KeyReportList } from '../../shared/schemas/keyControlExposure';
 import { conflict, notFound } from '../errors';
 import { keyExposureOf } from './keyExposure';
 import type { Sealer } from './secrets';
@@ -38,6 +38,6 @@ export async function listReports(db: Knex, status?: 'open' | 'closed'): Promise
   if (status) q.where('r.status', status);
   return ((await q) as Row[]).map((r) => {
     const { exposure, ...rest } = reportOf(r);
-    return { ...rest, counts: (exposure as Exposure).counts };
+    return { ...rest, counts: exposure.counts };
   });
 }

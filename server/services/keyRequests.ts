@@ -19,8 +19,8 @@ const levelRank = { change: 0, master: 1, gm: 2, ggm: 3 } as const;
 
 /** Every active key that opens all the doors (plug, intended or incidental), best first. */
 export async function proposeKeys(db: Knex, sealer: Sealer, doorIds: string[], chosen?: string): Promise<KeyProposal & { keySystemId: string }> {
-  const doors = (await db('doors').whereIn('id', doorIds).select('id', 'label')) as { id: string; label: string }[];
-  const cores = (await db('cores').whereIn('door_id', doorIds).where({ state: 'installed' }).select('door_id', 'key_system_id')) as { door_id: string; key_system_id: string }[];
+  const doors = await db('doors').whereIn('id', doorIds).select<{ id: string; label: string }[]>('id', 'label');
+  const cores = await db('cores').whereIn('door_id', doorIds).where({ state: 'installed' }).select<{ door_id: string; key_system_id: string }[]>('door_id', 'key_system_id');
   const problems = doorIds.flatMap((id, i) => {
     if (doorIds.indexOf(id) !== i) return [{ field: `doorIds.${i}`, message: 'listed twice' }];
     if (!doors.some((d) => d.id === id)) return [{ field: `doorIds.${i}`, message: 'unknown door' }];
@@ -64,7 +64,7 @@ export async function createRequest(db: Knex, sealer: Sealer, input: KeyRequestI
   const [row] = await db('key_requests')
     .insert({ number: nextval, holder_id: holder.id, key_system_id: best.keySystemId, door_ids: input.doorIds, reason: input.reason, proposed_key_id: best.proposal.keyId, key_id: chosen.proposal.keyId, created_by: by })
     .returning('id');
-  const authorisers = (await db('department_authorisers').where({ department_id: holder.department_id }).select('id', 'name', 'email')) as { id: string; name: string; email: string }[];
+  const authorisers = await db('department_authorisers').where({ department_id: holder.department_id }).select<{ id: string; name: string; email: string }[]>('id', 'name', 'email');
   const links: CreatedRequest['links'] = [];
   for (const a of authorisers) {
     const token = randomBytes(32).toString('base64url');
@@ -84,7 +84,7 @@ export async function getRequest(db: Knex, sealer: Sealer, id: string): Promise<
     .first('r.id', 'r.number', 'r.holder_id as holderId', 'h.name as holderName', 'd.name as department', 'r.key_system_id as keySystemId', 'r.door_ids', 'r.reason', 'r.proposed_key_id as proposedKeyId', 'p.symbol as proposedKeySymbol', 'r.key_id as keyId', 'k.symbol as keySymbol', 'r.status', 'r.decided_by_name as decidedBy', 'r.decided_at', 'r.decision_note as decisionNote', 'r.created_at');
   if (!r) throw notFound('That key request');
   const doorIds = r.door_ids as string[];
-  const doors = (await db('doors').whereIn('id', doorIds).select('id', 'label')) as { id: string; label: string }[];
+  const doors = await db('doors').whereIn('id', doorIds).select<{ id: string; label: string }[]>('id', 'label');
   const system = await loadSystem(db, sealer, r.keySystemId);
   const wanted = new Set(doorIds);
   const key = system.keys.find((k) => k.id === r.keyId)!;

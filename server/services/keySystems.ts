@@ -215,7 +215,7 @@ export async function replaceKey(db: Knex, sealer: Sealer, systemId: string, key
   return db.transaction(async (trx) => {
     const [id] = await addKeys(trx, sealer, systemId, [{ symbol: input.symbol, level: old.level, parentId: old.parentId, bitting: input.bitting, status: 'active', crossKeyed: false, notes: `Replaces ${old.symbol}` }]);
     await trx('keys').where({ id: keyId }).update({ status: input.oldStatus, updated_at: trx.fn.now() });
-    const doors = (await trx('doors').where({ key_id: keyId }).update({ key_id: id, updated_at: trx.fn.now() }).returning('label')) as { label: string }[];
+    const doors = await trx('doors').where({ key_id: keyId }).update({ key_id: id, updated_at: trx.fn.now() }).returning<{ label: string }[]>('label');
     const cores = (await trx('core_keys as ck').join('cores as c', 'c.id', 'ck.core_id').where('ck.key_id', keyId).whereNot('c.state', 'retired').pluck('c.tag')) as string[];
     return { id: id!, symbol: input.symbol.toUpperCase(), doors: doors.map((d) => d.label).sort(naturalCompare), coresToRekey: cores.sort(naturalCompare) };
   });

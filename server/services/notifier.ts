@@ -75,7 +75,7 @@ export async function sendPending(deps: Deps, limit = 50): Promise<number> {
     // The row stays locked while its mail goes out: a process killed mid-send drops its
     // connection, the lock goes with it, and the next server sends the mail.
     const outcome = await deps.db.transaction(async (trx) => {
-      const n = (await trx('notifications').whereNull('sent_at').where('attempts', '<', 10).whereNotIn('id', tried).orderBy('created_at').forUpdate().skipLocked().first('id', 'kind', 'ref_id')) as { id: string; kind: NotificationKind; ref_id: string } | undefined;
+      const n = await trx('notifications').whereNull('sent_at').where('attempts', '<', 10).whereNotIn('id', tried).orderBy('created_at').forUpdate().skipLocked().first<{ id: string; kind: NotificationKind; ref_id: string } | undefined>('id', 'kind', 'ref_id');
       if (!n) return null;
       tried.push(n.id);
       try {

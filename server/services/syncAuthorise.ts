@@ -57,7 +57,7 @@ export async function authorise(
 ): Promise<{ completions: Item<CompletionRecord>[]; installs: Item<InstallRecord>[]; cores: Map<string, CoreRef> }> {
   const coreIds = [...new Set([...batch.completions, ...batch.installs].map((i) => i.record.coreId))];
   const cores = new Map(
-    coreIds.length ? ((await db('cores as c').leftJoin('doors as d', 'd.id', 'c.door_id').whereIn('c.id', coreIds).select('c.id', 'c.tag', 'c.state', 'c.door_id', 'd.label')) as CoreRef[]).map((c) => [c.id, c]) : [],
+    coreIds.length ? (await db('cores as c').leftJoin('doors as d', 'd.id', 'c.door_id').whereIn('c.id', coreIds).select<CoreRef[]>('c.id', 'c.tag', 'c.state', 'c.door_id', 'd.label')).map((c) => [c.id, c]) : [],
   );
   const allowed = await access(db, user, coreIds);
   const now = Date.now();

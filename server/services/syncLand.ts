@@ -36,10 +36,10 @@ export interface Landed {
 /** Each core not yet installed takes the state of its newest completion by finishedAt, whatever order they arrived in. */
 async function stateFromHistory(trx: Knex.Transaction, coreIds: string[]): Promise<void> {
   if (!coreIds.length) return;
-  const latest = (await trx.raw(
+  const latest = await trx.raw<{ rows: { core_id: string; result: string }[] }>(
     `select distinct on (core_id) core_id, result from completions where core_id = any(?) order by core_id, finished_at desc, received_at desc, id desc`,
     [coreIds],
-  )) as { rows: { core_id: string; result: string }[] };
+  );
   for (const state of ['capped', 'planned'] as const) {
     const ids = latest.rows.filter((r) => (r.result === 'passed') === (state === 'capped')).map((r) => r.core_id);
     if (ids.length) await trx('cores').whereIn('id', ids).whereNotIn('state', ['installed', 'retired', state]).update({ state, updated_at: trx.fn.now() });

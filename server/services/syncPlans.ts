@@ -19,8 +19,8 @@ export interface CorePlan extends EvidencePlan {
 export async function loadCorePlans(db: Knex, sealer: Sealer, coreIds: string[]): Promise<Map<string, CorePlan>> {
   const out = new Map<string, CorePlan>();
   if (!coreIds.length) return out;
-  const cores = (await db('cores').whereIn('id', coreIds).select('id', 'key_system_id')) as { id: string; key_system_id: string }[];
-  const links = (await db('core_keys').whereIn('core_id', coreIds).select('core_id', 'key_id')) as { core_id: string; key_id: string }[];
+  const cores = await db('cores').whereIn('id', coreIds).select<{ id: string; key_system_id: string }[]>('id', 'key_system_id');
+  const links = await db('core_keys').whereIn('core_id', coreIds).select<{ core_id: string; key_id: string }[]>('core_id', 'key_id');
   const systems = new Map<string, LoadedSystem>();
   for (const id of new Set(cores.map((c) => c.key_system_id))) systems.set(id, await loadSystem(db, sealer, id));
   for (const c of cores) {

@@ -27,8 +27,7 @@ export function fingerprinter(dataKey: Buffer, audit: SystemAuditInput): (f: Sys
 /** The findings with their fingerprints and, where an administrator acknowledged one, the note. */
 export async function withAcknowledgements(db: Knex, systemId: string, dataKey: Buffer, audit: SystemAuditInput, findings: SystemAuditFinding[]): Promise<SystemAuditReportFinding[]> {
   const print = fingerprinter(dataKey, audit);
-  const rows = (await db('audit_acknowledgements').where({ key_system_id: systemId }).select('fingerprint', 'note', 'acknowledged_by_name', 'acknowledged_at')) as
-    { fingerprint: string; note: string; acknowledged_by_name: string; acknowledged_at: Date }[];
+  const rows = await db('audit_acknowledgements').where({ key_system_id: systemId }).select<{ fingerprint: string; note: string; acknowledged_by_name: string; acknowledged_at: Date }[]>('fingerprint', 'note', 'acknowledged_by_name', 'acknowledged_at');
   const byPrint = new Map(rows.map((r) => [r.fingerprint, { note: r.note, by: r.acknowledged_by_name, at: r.acknowledged_at.toISOString() }]));
   return findings.map((f) => {
     const fingerprint = print(f);

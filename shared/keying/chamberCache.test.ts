@@ -20,7 +20,7 @@ describe('profileCache follows the profile’s content', () => {
   test.each(figures)('editing %s in place starts a fresh cache', (field) => {
     const p = fresh();
     const before = profileCache(p);
-    (p as unknown as Record<string, number>)[field] = (p[field] as number) + 1;
+    (p as unknown as Record<string, number>)[field] = p[field] + 1;
     const after = profileCache(p);
     expect(after).not.toBe(before);
     expect(profileCache(p)).toBe(after);

@@ -35,4 +35,4 @@ export const stockedSizesRange = { min: 1, max: 40 } as const satisfies Range;
 
 export const isWhole = (n: unknown): n is number => typeof n === 'number' && Number.isInteger(n);
 /** A whole number within the range. */
-export const within = (n: unknown, range: Range): n is number => isWhole(n) && n >= range.min && n <= range.max;
+export const within = (n: unknown, range: Range): boolean => isWhole(n) && n >= range.min && n <= range.max;

@@ -82,7 +82,7 @@ export function placementChecker(profile: Profile, system: PlacementSystem): Pla
     if (same.length > 0) {
       const master = same.find((k) => k.id === placement.parentId);
       const sibling = same.find((k) => placement.parentId !== null && k.parentId === placement.parentId);
-      const other = master ?? sibling ?? (same[0] as PlacedKey);
+      const other: PlacedKey = master ?? sibling ?? same[0]!;
       const code: KeyingIssueCode = master ? 'placement-equals-master' : sibling ? 'placement-equals-sibling' : 'placement-equals-key';
       const who = master ? `its master ${other.symbol}` : sibling ? `${other.symbol}, a key under the same master` : `key ${other.symbol}`;
       problems.push({ code, field: 'bitting', message: `The bitting is the same as ${who}: two keys of one system never share a bitting. Progress at least one more position.` });

@@ -31,8 +31,8 @@ describe('refreshAcrossTabs (T8)', () => {
   test('a tab whose token is still the stored one rotates it; a signed-out store gives null (common practice)', async () => {
     const locks = createLocalLocks();
     let stored: Pair | null = { accessToken: 'a0', refreshToken: 'r0' };
-    expect(await refreshAcrossTabs({ locks, read: () => stored, rotate: async () => ({ accessToken: 'a1', refreshToken: 'r1' }) }, 'r0')).toBe('a1');
+    expect(await refreshAcrossTabs({ locks, read: () => stored, rotate: () => Promise.resolve({ accessToken: 'a1', refreshToken: 'r1' }) }, 'r0')).toBe('a1');
     stored = null;
-    expect(await refreshAcrossTabs({ locks, read: () => stored, rotate: async () => null }, 'r0')).toBeNull();
+    expect(await refreshAcrossTabs({ locks, read: () => stored, rotate: () => Promise.resolve(null) }, 'r0')).toBeNull();
   });
 });

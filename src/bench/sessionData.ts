@@ -76,5 +76,5 @@ export function up(raw: unknown): BenchSession {
   const v = typeof raw === 'object' && raw !== null ? (raw as { v?: unknown }).v : undefined;
   if (typeof v !== 'number') throw new Error('This stored Bench session has no version: it cannot be resumed.');
   if (v > BENCH_SESSION_VERSION) throw new Error(`This Bench session was saved by a newer version (v${v}): update the app to resume it.`);
-  return BenchSessionV1.parse(raw) as BenchSession;
+  return BenchSessionV1.parse(raw);
 }

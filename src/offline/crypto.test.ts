@@ -2,7 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { PBKDF2_ITERATIONS, deriveKek, importDataKey, newDataKey, open, randomBytes, seal, sealJson, openJson, unwrapDataKey } from './crypto';
 import { IntegrityError } from './errors';
 
-const enc = (s: string) => new TextEncoder().encode(s) as Uint8Array<ArrayBuffer>;
+const enc = (s: string) => new TextEncoder().encode(s);
 
 describe('sealed records (AES-256-GCM)', () => {
   it('opens what it sealed', async () => {

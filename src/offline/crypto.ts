@@ -19,7 +19,7 @@ const GCM = (iv: Bytes, aad: string): AesGcmParams => ({ name: 'AES-GCM', iv, ad
 
 const encoder = new TextEncoder();
 const decoder = new TextDecoder();
-const utf8 = (text: string): Bytes => encoder.encode(text) as Bytes;
+const utf8 = (text: string): Bytes => encoder.encode(text);
 const subtle = (): SubtleCrypto => globalThis.crypto.subtle;
 
 export function randomBytes(n: number): Bytes {

@@ -43,7 +43,8 @@ export function readPrefix<T>(prefix: string): Promise<[string, T][]> {
   const range = IDBKeyRange.bound(prefix, `${prefix}\uffff`);
   return kvStore()('readonly', async (os) => {
     const [keys, values] = await Promise.all([promisifyRequest(os.getAllKeys(range)), promisifyRequest(os.getAll(range))]);
-    return keys.map((k, i) => [String(k), values[i] as T] as [string, T]);
+    // Every store here is keyed by strings.
+    return keys.map((k, i) => [k as string, values[i] as T] as [string, T]);
   });
 }
 
@@ -74,7 +75,7 @@ export function commit(puts: [string, unknown][], deletes: string[] = []): Promi
     }
     // An abort we did not cause (quota at commit time) rejects with the transaction's error.
     return done.catch((err: unknown) => {
-      throw err ?? os.transaction.error ?? new Error('The storage transaction was aborted.');
+      throw (err ?? os.transaction.error ?? new Error('The storage transaction was aborted.')) as Error;
     });
   });
 }

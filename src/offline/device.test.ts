@@ -6,7 +6,7 @@ import { KEY, commit, readOne } from './db';
 import { LEGACY_DEVICE_KEY, deviceId } from './device';
 import { recordFinished } from './recordFinished';
 import { sync } from './index';
-import type { FakeServer } from './testing/fakeServer';
+import { pathOf, type FakeServer } from './testing/fakeServer';
 import { completion, who } from './testing/fixtures';
 import { memoryStorage, resetOffline, setUpVault } from './testing/harness';
 
@@ -68,8 +68,8 @@ describe('the one device id', () => {
     const signIns: unknown[] = [];
     const fake = server.fetch;
     vi.stubGlobal('fetch', vi.fn(async (input: RequestInfo | URL, init?: RequestInit) => {
-      if (String(input) !== '/api/auth/sign-in') return fake(input, init);
-      signIns.push(JSON.parse(String(init?.body)));
+      if (pathOf(input) !== '/api/auth/sign-in') return fake(input, init);
+      signIns.push(JSON.parse(init?.body as string));
       const user = { id: who.userId, email: 'tech@example.test', name: 'Test Tech', role: 'technician' };
       return new Response(JSON.stringify({ accessToken: 'a', refreshToken: 'r', expiresIn: 900, user }), { status: 200, headers: { 'Content-Type': 'application/json' } });
     }));
@@ -84,8 +84,8 @@ describe('the one device id', () => {
     const before = vi.mocked(fetch).mock.calls.length;
     expect((await sync.syncNow()).outcome).toBe('sent');
     const sent = vi.mocked(fetch).mock.calls.slice(before)
-      .filter(([input]) => String(input) === '/api/sync')
-      .map(([, init]) => (JSON.parse(String(init?.body)) as { deviceId: string }).deviceId);
+      .filter(([input]) => pathOf(input) === '/api/sync')
+      .map(([, init]) => (JSON.parse(init?.body as string) as { deviceId: string }).deviceId);
     expect(sent).toEqual([who.deviceId]);
     expect(server.rows.has(r.clientId)).toBe(true);
     expect(storage.getItem(LEGACY_DEVICE_KEY)).toBeNull();

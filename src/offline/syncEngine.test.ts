@@ -18,7 +18,7 @@ let timers: { fn: () => void; ms: number }[];
 
 function engine(extra: Partial<SyncDeps> = {}): SyncEngine {
   const e = createSyncEngine({
-    deviceId: async () => who.deviceId,
+    deviceId: () => Promise.resolve(who.deviceId),
     onRevoked: vault.revoke,
     locks: createLocalLocks(),
     random: () => 1,
@@ -180,7 +180,7 @@ describe('an ended session and a revoked tablet', () => {
   it('keeps the outbox on a 401 after the refresh fails, asks for sign-in, and sends after it', async () => {
     // the issue: an expired session keeps the outbox and asks for sign-in
     await finish(2);
-    const refresh = vi.fn(async () => null);
+    const refresh = vi.fn(() => Promise.resolve(null));
     useTokenSource({ accessToken: () => 'expired', refresh });
     server.queue.push({ status: 401, body: { error: { code: 'unauthenticated', message: 'Please sign in again' } } });
     const e = engine();

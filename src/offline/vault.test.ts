@@ -159,7 +159,7 @@ describe('recovering finished work through the server', () => {
 
   it('sends the bearer token of the fresh sign-in with the escrow request', async () => {
     // DEVELOPERS.md: everything after sign-in passes requireAuth
-    useTokenSource({ accessToken: () => 'fresh-token', refresh: async () => null });
+    useTokenSource({ accessToken: () => 'fresh-token', refresh: () => Promise.resolve(null) });
     vault.lock();
     await vault.forgotPassphrase();
     await vault.recoverWithServer('fresh tray of pins', { iterations: TEST_ITERATIONS });

@@ -103,7 +103,7 @@ async function sealUnderPassphrase(passphrase: string, outboxRaw: Bytes, iterati
   const record = {
     salt,
     iterations,
-    verifier: await seal(kek, AAD.verifier, new TextEncoder().encode(MARKER) as Bytes),
+    verifier: await seal(kek, AAD.verifier, new TextEncoder().encode(MARKER)),
     wrappedPacketKey: await seal(kek, AAD.packetKey, packetRaw),
     wrappedOutboxKeyByPass: await seal(kek, AAD.outboxKey, outboxRaw),
   };
@@ -274,7 +274,7 @@ export function changePassphrase(current: string, next: string, opts: KdfOptions
       ...record,
       salt,
       iterations,
-      verifier: await seal(kek, AAD.verifier, new TextEncoder().encode(MARKER) as Bytes),
+      verifier: await seal(kek, AAD.verifier, new TextEncoder().encode(MARKER)),
       wrappedPacketKey: await seal(kek, AAD.packetKey, packetRaw),
       wrappedOutboxKeyByPass: await seal(kek, AAD.outboxKey, outboxRaw),
       failedAttempts: 0,

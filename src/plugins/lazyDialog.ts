@@ -10,13 +10,13 @@ type Handler = (payload?: unknown) => void;
 type Create = (opts: QDialogOptions) => DialogChainObject;
 
 export function installLazyDialog(app: App): void {
-  const $q = app.config.globalProperties.$q as QVueGlobals;
+  const $q = app.config.globalProperties.$q;
   let real: Promise<Create> | null = null;
   const load = () =>
     (real ??= import('./dialogPlugin').then(({ Dialog }) => {
       // Quasar's own plugin install, as app.use(Quasar, { plugins }) would call it.
       (Dialog as unknown as { install: (opts: { $q: QVueGlobals; parentApp: App }) => void }).install({ $q, parentApp: app });
-      return $q.dialog as Create;
+      return $q.dialog;
     }));
 
   $q.dialog = ((opts: QDialogOptions) => {
@@ -37,6 +37,6 @@ export function installLazyDialog(app: App): void {
       hide: () => ((hidden = true), chain?.hide(), proxy),
       update: (next: QDialogOptions) => (chain?.update(next), proxy),
     };
-    return proxy as unknown as DialogChainObject;
-  }) as QVueGlobals['dialog'];
+    return proxy;
+  });
 }

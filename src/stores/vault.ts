@@ -109,7 +109,7 @@ export const useVaultStore = defineStore('vault', () => {
 
   // Sign-out wipes packets and Bench progress; the outbox and the passphrase stay.
   session.$onAction(({ name, after }) => {
-    if (name === 'signOut') after(() => vault.wipeLocal().then(refresh));
+    if (name === 'signOut') after(() => void vault.wipeLocal().then(refresh));
     if (name === 'signIn') after(() => void (lockReason.value = { kind: 'signed-in' }));
   });
   onProblem((problem) => {

@@ -222,7 +222,7 @@ describe('GET /api/completions.csv', () => {
     const lines = res.text.replace(/\r?\n$/, '').split(/\r?\n/);
     expect(lines[0]).toBe(columns.join(','));
     expect(lines).toHaveLength(1 + 17); // no cell here holds a line break, so one line per record
-    const records = parseCsv(res.text, { columns: true }) as Record<string, string>[];
+    const records: Record<string, string>[] = parseCsv(res.text, { columns: true });
     expect(records).toHaveLength(17);
     expect(records.map((r) => r.id)).toEqual((await all()).map((r) => r.id));
     expect(records.every((r) => Object.keys(r).length === columns.length)).toBe(true);
@@ -234,7 +234,7 @@ describe('GET /api/completions.csv', () => {
     // RFC 4180 2.6/2.7: a field with a comma or a quote is enclosed in quotes, inner quotes doubled
     expect(res.text).toContain(`"'=HYPERLINK(""http://example.test/x"",""open"")"`);
     expect(res.text).not.toMatch(/(^|,)=HYPERLINK/m);
-    const records = parseCsv(res.text, { columns: true }) as Record<string, string>[];
+    const records: Record<string, string>[] = parseCsv(res.text, { columns: true });
     expect(records).toHaveLength(3);
     for (const r of records) {
       expect(r.workOrderTitle).toBe(`'${FORMULA_TITLE}`);

@@ -215,7 +215,9 @@ test(
             }
           } else if (!atCommit && !armed) {
             armed = true;
-            timer = setTimeout(() => (killed = server.kill()), delay);
+            timer = setTimeout(() => {
+              killed = server.kill();
+            }, delay);
             reply = await send(token, batch);
             reach[size] = Math.round(reach[size]! * (reply ? 0.6 : 1.2));
           } else reply = await send(token, batch);
@@ -280,7 +282,7 @@ test(
     expect(finishedMails()).toBeGreaterThanOrEqual(mailedLast.finished);
 
     // Exactly 100 rows for those client ids, none twice by id or by (core, start time).
-    const rows = (await h.db('completions').whereIn('id', ids).select('id', 'core_id', 'work_order_id', 'device_id', 'started_at', 'finished_at', 'result', 'attempt_count', 'attempts', 'pin_sizes_enc')) as {
+    const rows = await h.db('completions').whereIn('id', ids).select<{
       id: string;
       core_id: string;
       work_order_id: string;
@@ -291,7 +293,7 @@ test(
       attempt_count: number;
       attempts: CompletionRecord['attempts'];
       pin_sizes_enc: string | null;
-    }[];
+    }[]>('id', 'core_id', 'work_order_id', 'device_id', 'started_at', 'finished_at', 'result', 'attempt_count', 'attempts', 'pin_sizes_enc');
     expect(rows).toHaveLength(RECORDS);
     const coreIds = cores.map((c) => c.id);
     expect(await h.db('completions').whereIn('core_id', coreIds).groupBy('core_id', 'started_at').havingRaw('count(*) > 1').select('core_id', 'started_at')).toEqual([]);

@@ -32,8 +32,8 @@ async function refresh(): Promise<void> {
 
 /** The rule, core by core: every installed core's chart from pinCore, then keyOperates. */
 async function bruteForce(bitting: string, id: string | null): Promise<string[]> {
-  const cores = (await h.db('cores').where({ key_system_id: systemId, state: 'installed' }).select('id')) as { id: string }[];
-  const links = (await h.db('core_keys').whereIn('core_id', cores.map((c) => c.id)).select('core_id', 'key_id')) as { core_id: string; key_id: string }[];
+  const cores = await h.db('cores').where({ key_system_id: systemId, state: 'installed' }).select<{ id: string }[]>('id');
+  const links = await h.db('core_keys').whereIn('core_id', cores.map((c) => c.id)).select<{ core_id: string; key_id: string }[]>('core_id', 'key_id');
   const out: string[] = [];
   for (const c of cores) {
     const chain = links.filter((l) => l.core_id === c.id).map((l) => l.key_id);
@@ -164,7 +164,7 @@ describe('who can open this door, what can this person open', () => {
     // Brute force: every copy out in the system, its key through keyOperates on this core's chart.
     const chain = (await h.db('core_keys').where({ core_id: core.id }).pluck('key_id')) as string[];
     const pinning = pinCore(system.profile, { operating: chain.map((k) => system.keys.find((x) => x.id === k)!.bitting), control: system.control });
-    const out = (await h.db('key_issues').where({ status: 'out' }).select('id', 'key_id')) as { id: string; key_id: string }[];
+    const out = await h.db('key_issues').where({ status: 'out' }).select<{ id: string; key_id: string }[]>('id', 'key_id');
     const expected = out.filter((i) => { const d = keyOperates(pinning, system.profile, system.keys.find((k) => k.id === i.key_id)!.bitting); return d.plug || d.control; }).map((i) => i.id).sort();
     expect(res.json.holders.map((x: { issueId: string }) => x.issueId).sort()).toEqual(expected);
   });

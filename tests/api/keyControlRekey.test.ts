@@ -92,7 +92,9 @@ describe('the plan for a lost master', () => {
     const { reportId } = await lostReport('AB', 1);
     const plan = (await h.call('GET', `/api/key-reports/${reportId}/plan`, { token: lead })).json.plan;
     const installed = await h.db('core_keys as ck').join('cores as c', 'c.id', 'ck.core_id').where({ 'ck.key_id': keyId.get('AB'), 'c.state': 'installed' }).count({ n: '*' }).first();
-    const outUnder = await h.db('key_issues as i').join('keys as k', 'k.id', 'i.key_id').where('i.status', 'out').where((w) => w.where('k.id', keyId.get('AB')!).orWhere('k.parent_id', keyId.get('AB')!)).count({ n: '*' }).first();
+    const outUnder = await h.db('key_issues as i').join('keys as k', 'k.id', 'i.key_id').where('i.status', 'out').where((w) => {
+      w.where('k.id', keyId.get('AB')!).orWhere('k.parent_id', keyId.get('AB')!);
+    }).count({ n: '*' }).first();
     expect(plan.choices.map((c: { option: string }) => c.option)).toEqual(['re-master', 'rekey-under-master']);
     expect(plan.choices.map((c: { coresToBuild: number }) => c.coresToBuild)).toEqual([Number(installed!.n), Number(installed!.n)]);
     expect(plan.choices[1].keysToReissue).toBe(Number(outUnder!.n) + 1);

@@ -20,7 +20,7 @@ url.pathname = `/${name}`;
  */
 const dir = path.resolve(import.meta.dirname, '../../migrations');
 const migrationSource: Knex.MigrationSource<string> = {
-  getMigrations: async () => readdirSync(dir).filter((f) => f.endsWith('.ts') && !f.endsWith('.test.ts')).sort(),
+  getMigrations: () => Promise.resolve(readdirSync(dir).filter((f) => f.endsWith('.ts') && !f.endsWith('.test.ts')).sort()),
   getMigrationName: (file) => file,
   getMigration: async (file) => (await import(/* @vite-ignore */ pathToFileURL(path.join(dir, file)).href)) as Knex.Migration,
 };

@@ -13,7 +13,7 @@ let token: string;
 let packet: Packet;
 const deviceId = randomUUID();
 const sync = (records: unknown[], tok = token, dev = deviceId) => h.call('POST', '/api/sync', { token: tok, body: { deviceId: dev, records } });
-const stateOf = async (coreId: string) => ((await h.db('cores').where({ id: coreId }).first('state')) as { state: string }).state;
+const stateOf = async (coreId: string) => (await h.db('cores').where({ id: coreId }).first<{ state: string }>('state')).state;
 const wo = () => packet.workOrder.id;
 
 beforeAll(async () => {

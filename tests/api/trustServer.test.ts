@@ -252,7 +252,7 @@ describe('T10 clear answers under faults', () => {
     expect(line).toContain(",'-2+3,");
     expect(line).toContain(",'@SUM(A1),");
     expect(line).toContain("'\t=1");
-    const cells = parseCsv(res.text, { columns: true }) as Record<string, string>[];
+    const cells: Record<string, string>[] = parseCsv(res.text, { columns: true });
     for (const r of cells) for (const v of Object.values(r)) expect(v, v).not.toMatch(/^[=+\-@\t\r]/);
   });
 });

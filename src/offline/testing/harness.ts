@@ -43,11 +43,11 @@ export async function rawDump(): Promise<string> {
       req.onsuccess = () => {
         const cursor = req.result;
         if (!cursor) return resolve();
-        parts.push(String(cursor.key));
+        parts.push(cursor.key as string);
         walk(cursor.value);
         cursor.continue();
       };
-      req.onerror = () => reject(req.error);
+      req.onerror = () => reject(req.error ?? new Error('the cursor failed'));
     });
   });
   return parts.join('\n');
@@ -56,8 +56,8 @@ export async function rawDump(): Promise<string> {
 export async function allKeys(): Promise<string[]> {
   return kvStore()('readonly', (os) => new Promise<string[]>((resolve, reject) => {
     const req = os.getAllKeys();
-    req.onsuccess = () => resolve(req.result.map(String));
-    req.onerror = () => reject(req.error);
+    req.onsuccess = () => resolve(req.result as string[]);
+    req.onerror = () => reject(req.error ?? new Error('reading the keys failed'));
   }));
 }
 

@@ -119,8 +119,8 @@ export async function serverProcess(opts: ServerProcessOptions = {}): Promise<Se
       });
     });
     c.once('error', (err) => keep(Buffer.from(`[spawn] ${err.message}\n`)));
-    c.stdout!.on('data', keep);
-    c.stderr!.on('data', keep);
+    c.stdout.on('data', keep);
+    c.stderr.on('data', keep);
 
     const deadline = Date.now() + readyTimeoutMs;
     while (Date.now() < deadline) {
