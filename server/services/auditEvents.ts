@@ -6,6 +6,7 @@ import type { Knex } from 'knex';
 import { actionName, detailLine } from '../../shared/auditTrailWords';
 import type { AuditPage, AuditQuery } from '../../shared/schemas/auditEvents';
 import { whereDays } from './dates';
+import { likeText } from './likeText';
 
 export interface AuditFilter {
   /** Action prefixes, comma-separated. */
@@ -34,7 +35,7 @@ function auditQuery(db: Knex, f: AuditFilter) {
   const q = db('audit_events as e').leftJoin('users as u', 'u.id', 'e.actor_id');
   const prefixes = (f.action ?? '').split(',').map((p) => p.trim()).filter(Boolean);
   if (prefixes.length) q.where((w) => {
-    for (const p of prefixes) w.orWhere('e.action', 'like', `${p.replace(/[%_\\]/g, (c) => `\\${c}`)}%`);
+    for (const p of prefixes) w.orWhere('e.action', 'like', `${likeText(p)}%`);
   });
   if (f.actorId) q.where('e.actor_id', f.actorId);
   if (f.targetId) q.where('e.target_id', f.targetId);

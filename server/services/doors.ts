@@ -5,6 +5,7 @@ import { isoOrNull } from './dates';
 import type { Door, DoorInput, DoorUpdate } from '../../shared/schemas/records';
 import { naturalCompare } from '../../shared/words';
 import { badRequest, conflict, notFound } from '../errors';
+import { likeText } from './likeText';
 
 export interface DoorFilter {
   q?: string | undefined;
@@ -38,7 +39,7 @@ export function doorQuery(db: Knex) {
 export async function listDoors(db: Knex, f: DoorFilter): Promise<Door[]> {
   const q = doorQuery(db);
   if (f.q) {
-    const like = `%${f.q.replace(/[%_\\]/g, (c) => `\\${c}`)}%`;
+    const like = `%${likeText(f.q)}%`;
     q.where((w) => {
       w.whereILike('d.label', like).orWhereILike('d.room', like).orWhereILike('d.building', like);
     });

@@ -3,6 +3,7 @@ import type { Knex } from 'knex';
 import type { Department, DepartmentInput, Holder, HolderInput, HolderQuery, HolderUpdate } from '../../shared/schemas/keyControl';
 import { naturalCompare } from '../../shared/words';
 import { badRequest, conflict, notFound } from '../errors';
+import { likeText } from './likeText';
 
 const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
 
@@ -69,7 +70,7 @@ const iso = <T extends { createdAt: unknown }>(h: T): T => ({ ...h, createdAt: n
 export async function listHolders(db: Knex, f: HolderQuery): Promise<Holder[]> {
   const q = holderQuery(db);
   if (f.q) {
-    const like = `%${f.q.replace(/[%_\\]/g, (c) => `\\${c}`)}%`;
+    const like = `%${likeText(f.q)}%`;
     q.where((w) => {
       w.whereILike('h.name', like).orWhereILike('h.email', like).orWhereILike('h.badge_id', like).orWhereILike('d.name', like);
     });

@@ -45,10 +45,11 @@ export const Attempt = z.strictObject({
 });
 export type Attempt = z.infer<typeof Attempt>;
 
+/** What every record the tablet sends starts with: its own id (the idempotency key), its kind and its core. */
+const recordOf = <K extends string>(kind: K) => ({ clientId: Id, kind: z.literal(kind), coreId: Id });
+
 export const CompletionRecord = z.strictObject({
-  clientId: Id,
-  kind: z.literal('completion'),
-  coreId: Id,
+  ...recordOf('completion'),
   workOrderId: Id,
   startedAt: IsoDateTime,
   finishedAt: IsoDateTime,
@@ -60,9 +61,7 @@ export const CompletionRecord = z.strictObject({
 export type CompletionRecord = z.infer<typeof CompletionRecord>;
 
 export const InstallRecord = z.strictObject({
-  clientId: Id,
-  kind: z.literal('install'),
-  coreId: Id,
+  ...recordOf('install'),
   doorId: Id,
   /** The tag of the core taken out of the door, when there was one. */
   removedCoreTag: Text(24, 'the removed core tag').nullable(),
