@@ -30,7 +30,7 @@ export async function startCampaign(db: Knex, input: KeyCampaignInput, by: strin
   const q = db('key_issues as i').join('key_holders as h', 'h.id', 'i.holder_id').join('keys as k', 'k.id', 'i.key_id').where('i.status', 'out');
   if (input.keySystemId) q.where('k.key_system_id', input.keySystemId);
   else q.where('h.department_id', input.departmentId!);
-  const copies = (await q.select('i.id as issueId', 'h.id as holderId', 'h.name', 'h.email', 'k.symbol as keySymbol', 'i.copy_number as copyNumber')) as OutCopy[];
+  const copies = await q.select<OutCopy[]>('i.id as issueId', 'h.id as holderId', 'h.name', 'h.email', 'k.symbol as keySymbol', 'i.copy_number as copyNumber');
   const asked = copies.filter((c) => c.email);
   if (!asked.length) throw conflict('No holder with an e-mail on record has a key out in that scope: there is no one to ask.', [{ field: input.keySystemId ? 'keySystemId' : 'departmentId', message: 'no one to ask' }]);
   const { nextval } = ((await db.raw(`select nextval('key_campaign_number_seq')::int as nextval`)).rows as { nextval: number }[])[0]!;
@@ -74,7 +74,7 @@ async function summaries(db: Knex, id?: string): Promise<(KeyCampaignSummary & {
     // Holders with keys out in the scope today but no e-mail: not asked.
     const nq = db('key_issues as i').join('key_holders as h', 'h.id', 'i.holder_id').join('keys as k', 'k.id', 'i.key_id').where('i.status', 'out').whereNull('h.email').distinct('h.name');
     if (c.key_system_id) nq.where('k.key_system_id', c.key_system_id);
-    else nq.where('h.department_id', c.department_id!);
+    else nq.where('h.department_id', c.department_id);
     const noEmail = ((await nq) as { name: string }[]).map((r) => r.name).sort(naturalCompare);
     out.push({
       id: c.id,
@@ -141,7 +141,7 @@ export async function viewCampaignLink(db: Knex, token: string): Promise<Campaig
 /** The holder's answer, once: every copy listed held or missing; a missing one opens a lost report. */
 export async function confirmByLink(db: Knex, sealer: Sealer, input: CampaignConfirm): Promise<{ answer: CampaignLinkAnswer; reports: string[]; name: string }> {
   const link = await openLink(db, input.token, true);
-  const listed = (await db('key_campaign_copies').where({ campaign_holder_id: link.id }).select('id', 'issue_id')) as { id: string; issue_id: string }[];
+  const listed = await db('key_campaign_copies').where({ campaign_holder_id: link.id }).select<{ id: string; issue_id: string }[]>('id', 'issue_id');
   const given = new Map(input.copies.map((c) => [c.issueId, c.held]));
   const problems = [
     ...input.copies.flatMap((c, i) => (listed.some((l) => l.issue_id === c.issueId) ? [] : [{ field: `copies.${i}.issueId`, message: 'not one of the keys this link asks about' }])),

@@ -15,12 +15,12 @@ interface Replaced { oldKeyId: string; newKeyId: string }
 /** Reports whose work order holds any of these cores, closed when their work order is all installed. */
 export async function closeReportsAfterInstalls(trx: Knex.Transaction, coreIds: string[], actor: Actor): Promise<string[]> {
   if (!coreIds.length) return [];
-  const reports = (await trx('key_reports as r')
+  const reports = await trx('key_reports as r')
     .whereIn('r.work_order_id', trx('work_order_cores').whereIn('core_id', coreIds).select('work_order_id'))
     .where('r.status', 'open')
     .orderBy('r.id')
     .forUpdate()
-    .select('r.id', 'r.issue_id', 'r.work_order_id', 'r.new_keys')) as { id: string; issue_id: string; work_order_id: string; new_keys: Replaced[] | null }[];
+    .select<{ id: string; issue_id: string; work_order_id: string; new_keys: Replaced[] | null }[]>('r.id', 'r.issue_id', 'r.work_order_id', 'r.new_keys');
   const closed: string[] = [];
   for (const r of reports) {
     // Every core of the work order went into its door (installed now, or retired by a later install); a cancelled

@@ -170,11 +170,13 @@ async function computePlan(db: Knex, sealer: Sealer, reportId: string): Promise<
     grew = false;
     for (const k of system.keys) if (k.parentId && under.has(k.parentId) && !under.has(k.id)) { under.add(k.id); grew = true; }
   }
-  const copies = (await db('key_issues as i').join('key_holders as h', 'h.id', 'i.holder_id').join('keys as k', 'k.id', 'i.key_id').whereIn('i.key_id', key.level === 'change' ? [key.id] : [...under]).where((w) => w.where('i.status', 'out').orWhere('i.id', report.issue_id)).orderBy(['k.symbol', 'i.copy_number']).select('i.id as issueId', 'h.id as holderId', 'h.name as holderName', 'k.symbol as keySymbol', 'i.copy_number as copyNumber')) as RekeyPlan['copiesToReissue'];
+  const copies = await db('key_issues as i').join('key_holders as h', 'h.id', 'i.holder_id').join('keys as k', 'k.id', 'i.key_id').whereIn('i.key_id', key.level === 'change' ? [key.id] : [...under]).where((w) => {
+      w.where('i.status', 'out').orWhere('i.id', report.issue_id);
+    }).orderBy(['k.symbol', 'i.copy_number']).select<RekeyPlan['copiesToReissue']>('i.id as issueId', 'h.id as holderId', 'h.name as holderName', 'k.symbol as keySymbol', 'i.copy_number as copyNumber');
   const intended = new Set(exposed.filter((c) => c.how === 'intended').map((c) => c.id));
   const pinned = all.filter((c) => intended.has(c.id));
-  const doorKeys = new Map(((await db('doors').whereIn('id', pinned.flatMap((c) => (c.doorId ? [c.doorId] : []))).select('id', 'key_id')) as { id: string; key_id: string | null }[]).map((d) => [d.id, d.key_id]));
-  const cross = new Map(((await db('core_keys').whereIn('core_id', pinned.map((c) => c.id)).where({ cross_keyed: true }).select('core_id', 'key_id')) as { core_id: string; key_id: string }[]).map((l) => [l.core_id, l.key_id]));
+  const doorKeys = new Map((await db('doors').whereIn('id', pinned.flatMap((c) => (c.doorId ? [c.doorId] : []))).select<{ id: string; key_id: string | null }[]>('id', 'key_id')).map((d) => [d.id, d.key_id]));
+  const cross = new Map((await db('core_keys').whereIn('core_id', pinned.map((c) => c.id)).where({ cross_keyed: true }).select<{ core_id: string; key_id: string }[]>('core_id', 'key_id')).map((l) => [l.core_id, l.key_id]));
   const cores: InstalledCore[] = pinned.map((c) => ({ ...c, doorKeyId: (c.doorId && doorKeys.get(c.doorId)) || null, crossKeyId: cross.get(c.id) ?? null }));
   const coresToRepin = exposed.filter((c) => c.how === 'intended').map((c) => planCore(c)).sort((a, b) => naturalCompare(a.doorLabel ?? a.tag, b.doorLabel ?? b.tag));
   const incidentalCores = exposed.filter((c) => c.how === 'incidental').map((c) => planCore(c));

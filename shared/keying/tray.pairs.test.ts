@@ -15,7 +15,7 @@ const s = profile.sleeveUnits;
 const chamber = (n: number, bottom: number, buildUp: number[]): ChamberPinning => ({
   chamber: n, depths: [bottom], bottom, masters: [], buildUp, top: 1, total: bottom + buildUp.reduce((a, b) => a + b, 0) + 1,
 });
-const core = (...chambers: ChamberPinning[]): CorePinning => ({ chambers, openingsCount: 1, controlOpeningsCount: 1, issues: [] }) as unknown as CorePinning;
+const core = (...chambers: ChamberPinning[]): CorePinning => ({ chambers, openingsCount: 1, controlOpeningsCount: 1, issues: [] });
 
 describe('two-wafer build-ups on the tray', () => {
   test('listed by chamber, then by total, then by the lower wafer, whatever order the cores come in', () => {

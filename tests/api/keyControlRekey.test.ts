@@ -77,7 +77,7 @@ describe('the plan for a lost change key', () => {
 /** Brute force over the work order's planned cores: does `bitting` turn any of them (keyOperates on each pinCore chart)? */
 async function turnsAnyPlanned(workOrderId: string, bitting: string): Promise<string[]> {
   const now = await loadSystem(h.db, h.sealer, system.id);
-  const cores = (await h.db('work_order_cores as x').join('cores as c', 'c.id', 'x.core_id').where('x.work_order_id', workOrderId).select('c.id', 'c.tag')) as { id: string; tag: string }[];
+  const cores = await h.db('work_order_cores as x').join('cores as c', 'c.id', 'x.core_id').where('x.work_order_id', workOrderId).select<{ id: string; tag: string }[]>('c.id', 'c.tag');
   const turned: string[] = [];
   for (const c of cores) {
     const operating = (await h.db('core_keys').where({ core_id: c.id }).pluck('key_id')) as string[];
