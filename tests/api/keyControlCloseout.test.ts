@@ -179,7 +179,7 @@ describe('a lost master keyed straight to its doors: re-mastered', () => {
     expect((await sync(rebuilt.flatMap((r) => [r.completion, r.install]))).json.rejected).toEqual([]);
     expect((await report(reportId))!.status).toBe('closed');
     expect((await h.db('keys').where({ id: ax }).first('status')).status).toBe('retired');
-    const tasks = (await h.db('key_reissue_tasks').where({ report_id: reportId }).select('holder_id', 'new_key_id')) as { holder_id: string; new_key_id: string }[];
+    const tasks = await h.db('key_reissue_tasks').where({ report_id: reportId }).select<{ holder_id: string; new_key_id: string }[]>('holder_id', 'new_key_id');
     expect(tasks).toEqual([{ holder_id: holder, new_key_id: fresh.id }]);
   });
 });
