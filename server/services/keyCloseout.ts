@@ -30,18 +30,24 @@ export async function closeReportsAfterInstalls(trx: Knex.Transaction, coreIds: 
     const waiting = await trx('work_order_cores as x')
       .join('cores as c', 'c.id', 'x.core_id')
       .where('x.work_order_id', r.work_order_id)
-      .where((w) => w.whereNot('c.state', 'retired').whereNot('c.state', 'installed').orWhere((o) => o.where('c.state', 'retired').whereNotExists(trx('installs as n').whereRaw('n.core_id = c.id'))))
+      .where((w) => {
+        w.whereNot('c.state', 'retired').whereNot('c.state', 'installed').orWhere((o) => {
+          o.where('c.state', 'retired').whereNotExists(trx('installs as n').whereRaw('n.core_id = c.id'));
+        });
+      })
       .first('c.id');
     if (waiting) continue;
     const replaced = r.new_keys ?? [];
     const newOf = new Map(replaced.map((k) => [k.oldKeyId, k.newKeyId]));
     await trx('keys').whereIn('id', [...newOf.keys()]).update({ status: 'retired', updated_at: trx.fn.now() });
     // Other copies of these keys reported lost or stolen meanwhile are restored by the same rekey: they close with it.
-    const alongside = (await trx('key_reports as o').join('key_issues as i', 'i.id', 'o.issue_id').whereIn('i.key_id', [...newOf.keys()]).where('o.status', 'open').whereNull('o.work_order_id').whereNot('o.id', r.id).select('o.id', 'o.issue_id')) as { id: string; issue_id: string }[];
-    const copies = (await trx('key_issues')
+    const alongside = await trx('key_reports as o').join('key_issues as i', 'i.id', 'o.issue_id').whereIn('i.key_id', [...newOf.keys()]).where('o.status', 'open').whereNull('o.work_order_id').whereNot('o.id', r.id).select<{ id: string; issue_id: string }[]>('o.id', 'o.issue_id');
+    const copies = await trx('key_issues')
       .whereIn('key_id', [...newOf.keys()])
-      .where((w) => w.where('status', 'out').orWhereIn('id', [r.issue_id, ...alongside.map((o) => o.issue_id)]))
-      .select('id', 'holder_id', 'key_id')) as { id: string; holder_id: string; key_id: string }[];
+      .where((w) => {
+        w.where('status', 'out').orWhereIn('id', [r.issue_id, ...alongside.map((o) => o.issue_id)]);
+      })
+      .select<{ id: string; holder_id: string; key_id: string }[]>('id', 'holder_id', 'key_id');
     if (copies.length) {
       await trx('key_reissue_tasks')
         .insert(copies.map((c) => ({ report_id: r.id, holder_id: c.holder_id, old_issue_id: c.id, new_key_id: newOf.get(c.key_id)! })))

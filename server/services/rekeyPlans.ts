@@ -255,7 +255,7 @@ export async function planToWorkOrder(db: Knex, sealer: Sealer, reportId: string
   const { plan, choices, system, cores } = await computePlan(db, sealer, reportId);
   const lost = system.keys.find((k) => k.id === plan.lostKey.id)!;
   // Another copy of the same key reported earlier may have its rekey under way already: this report closes with it.
-  const underWay = (await db('key_reports as r').join('work_orders as w', 'w.id', 'r.work_order_id').where('r.status', 'open').whereNot('w.status', 'cancelled').whereRaw('r.new_keys @> ?::jsonb', [JSON.stringify([{ oldKeyId: lost.id }])]).first('w.number')) as { number: number } | undefined;
+  const underWay = await db('key_reports as r').join('work_orders as w', 'w.id', 'r.work_order_id').where('r.status', 'open').whereNot('w.status', 'cancelled').whereRaw('r.new_keys @> ?::jsonb', [JSON.stringify([{ oldKeyId: lost.id }])]).first<{ number: number } | undefined>('w.number');
   if (underWay) throw conflict(`Key ${lost.symbol} is being rekeyed already by work order #${underWay.number}; this report closes when its cores are installed.`, [{ field: 'reportId', message: 'rekey under way' }]);
   const choice = input.option ? choices.find((c) => c.option === input.option) : choices[0];
   if (!choice) throw conflict(`${plan.lostKey.symbol} is a ${plan.lostKey.level === 'change' ? 'change key' : 'master'}: the choices are ${choices.map((c) => c.option).join(' or ')}.`, [{ field: 'option', message: 'not a choice of this plan' }]);

@@ -123,8 +123,8 @@ describe('the holder answers from the mailed link', () => {
 
 describe('a campaign over a key system, and its trail', () => {
   test('every holder with a copy out of the system and an e-mail is asked, once; the audit trail\'s key control filter finds the campaign and the answers', async () => {
-    const system = (await h.db('key_systems').first('id', 'name')) as { id: string; name: string };
-    const expected = (await h.db('key_issues as i').join('key_holders as h', 'h.id', 'i.holder_id').join('keys as k', 'k.id', 'i.key_id').where({ 'i.status': 'out', 'k.key_system_id': system.id }).whereNotNull('h.email').distinct('h.name')) as { name: string }[];
+    const system = await h.db('key_systems').first<{ id: string; name: string }>('id', 'name');
+    const expected = await h.db('key_issues as i').join('key_holders as h', 'h.id', 'i.holder_id').join('keys as k', 'k.id', 'i.key_id').where({ 'i.status': 'out', 'k.key_system_id': system.id }).whereNotNull('h.email').distinct<{ name: string }[]>('h.name');
     const res = await h.call('POST', '/api/key-campaigns', { token: lead, body: { title: 'Whole campus', keySystemId: system.id } });
     expect(res.status, res.text).toBe(201);
     expect(res.json.campaign.scope).toEqual({ kind: 'key-system', name: system.name });
