@@ -18,8 +18,8 @@ const of = (f: SystemAuditFinding[], code: SystemAuditFinding['code']) => f.filt
 const clean: SystemAuditInput = {
   control: '135791',
   topMaster: 'A',
-  keys: [key('A', '444444', ['R1', 'R2']), key('A1', '424444', ['R1']), key('A2', '464444', ['R2'])],
-  cores: [{ id: 'R1', label: 'Room 1', operating: ['A1', 'A'] }, { id: 'R2', label: 'Room 2', operating: ['A2', 'A'] }],
+  keys: [key('A', '444444', ['R1', 'R2']), key('AA1', '424444', ['R1']), key('AA2', '464444', ['R2'])],
+  cores: [{ id: 'R1', label: 'Room 1', operating: ['AA1', 'A'] }, { id: 'R2', label: 'Room 2', operating: ['AA2', 'A'] }],
 };
 
 describe('a clean system raises none of the control and pinning findings', () => {
@@ -56,8 +56,8 @@ describe('the control key and the top master', () => {
     const f = auditSystem(sfic6, {
       ...clean,
       control: '424424',
-      keys: [...clean.keys, key('A1b', '444424', ['R1'])],
-      cores: [{ id: 'R1', label: 'Room 1', operating: ['A1', 'A1b', 'A'] }, clean.cores[1]!],
+      keys: [...clean.keys, key('AA1b', '444424', ['R1'])],
+      cores: [{ id: 'R1', label: 'Room 1', operating: ['AA1', 'AA1b', 'A'] }, clean.cores[1]!],
     });
     expect(of(f, 'control-turns-plug')).toEqual([expect.objectContaining({ cores: ['R1'], data: { cores: 1 }, message: 'The control key would turn the plug of 1 core: Room 1.' })]);
   });

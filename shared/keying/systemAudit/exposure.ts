@@ -33,7 +33,7 @@ export function exposureFinding(ctx: SystemAuditContext): Ranked | null {
   }
   const refs = keyRefs(ctx, [ctx.topMaster]);
   return finding('rights-amplification', 0, {
-    message: `Top master ${refs.keys[0] ?? ''}: ${positionsMastered} of ${profile.chambers} positions are mastered. With one change key and a core it turns, the top master can be found one position at a time with at most ${plural(testCuts, 'test cut')} in the mastered positions (${plural(testCutsAllPositions, 'test cut')} when every position is tried, as the holder does not know which are mastered) (M. Blaze, IEEE Security & Privacy, 2003).`,
+    message: `Top master ${refs.keys[0] ?? ''}: ${positionsMastered} of ${profile.chambers} positions are mastered. With one change key and a core it turns, the top master can be found one position at a time with at most ${plural(testCuts, 'test cut')} in the mastered positions (${plural(testCutsAllPositions, 'test cut')} when every position is tried, as the holder does not know which are mastered).`,
     // Common practice: the attack works on any conventionally master-keyed core, so the
     // advice is about limiting who can cut test keys and where the top master reaches.
     advice: 'Any conventionally master-keyed core allows this; the figure shows how little it takes. Keep key blanks under key control (no spare blanks on site), and keep the top master off cores in less trusted areas by pinning them for a lower master.',
