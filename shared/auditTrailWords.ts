@@ -24,6 +24,7 @@ export const actionWords: Record<string, string> = {
   'key-system.updated': 'Changed a key system',
   'key-system.control-changed': 'Changed the control key',
   'key-system.audited': 'Ran the system audit',
+  'audit-finding.acknowledged': 'Acknowledged a system audit finding',
   'keys.added': 'Added keys',
   'keys.imported': 'Imported a bitting list',
   'key.updated': 'Changed a key',
