@@ -14,7 +14,8 @@ export interface StockTable {
 }
 
 /** In the mask only whole sizes 0..30 (the ones maskOf sets); any other size (fractional, negative, large) is looked up in the list. */
-const inMask = (size: number): boolean => Number.isInteger(size) && size >= 0 && size < 31;
+// size >>> 0 === size: a whole number from 0 up (a fraction, a negative or NaN changes under >>> 0).
+const inMask = (size: number): boolean => size >>> 0 === size && size < 31;
 
 function maskOf(sizes: readonly number[]): number {
   let mask = 0;
