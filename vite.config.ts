@@ -61,7 +61,9 @@ export default defineConfig({
       // The first load of the tablet is the budget (JS before the Bench is usable, npm run bench): the app's
       // first chunk lists, for each lazy page, the files to fetch with it. Only the tablet's path keeps that list;
       // an office page fetches its parts when it imports them (a desktop on the office network).
-      resolveDependencies: (filename, deps) => (/(^|\/)(Bench\w*Page|UnlockPage|SignInPage|MainLayout)-/.test(filename) ? deps : []),
+      // index.html's own preloads (the first chunk's static imports) are kept as they are.
+      resolveDependencies: (filename, deps, { hostType }) =>
+        hostType === 'html' || /(^|\/)(Bench\w*Page|UnlockPage|SignInPage|MainLayout)-/.test(filename) ? deps : [],
     },
   },
 });

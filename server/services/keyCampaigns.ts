@@ -47,7 +47,7 @@ export async function startCampaign(db: Knex, input: KeyCampaignInput, by: strin
   return { id: row.id as string, number: nextval, title: input.title, expiresAt, links };
 }
 
-interface CopyRow { campaignId: string; holderId: string; name: string; department: string; email: string; answeredAt: Date | null; issueId: string; keySymbol: string; copyNumber: number; answer: 'held' | 'missing' | null; reportId: string | null }
+interface CopyRow { campaignId: string; holderId: string; name: string; department: string; email: string | null; answeredAt: Date | null; issueId: string; keySymbol: string; copyNumber: number; answer: 'held' | 'missing' | null; reportId: string | null }
 
 function copiesQuery(db: Knex) {
   return db('key_campaign_copies as cc')

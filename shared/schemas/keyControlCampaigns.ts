@@ -37,7 +37,7 @@ export const KeyCampaignSummary = z.object({
 export type KeyCampaignSummary = z.infer<typeof KeyCampaignSummary>;
 
 export const KeyCampaign = KeyCampaignSummary.extend({
-  people: z.array(z.object({ holderId: Id, name: z.string(), department: z.string(), email: z.string(), answeredAt: z.string().nullable(), copies: z.array(CampaignCopy) })),
+  people: z.array(z.object({ holderId: Id, name: z.string(), department: z.string(), email: z.string().nullable(), answeredAt: z.string().nullable(), copies: z.array(CampaignCopy) })),
 });
 export type KeyCampaign = z.infer<typeof KeyCampaign>;
 export const KeyCampaignAnswer = z.object({ campaign: KeyCampaign });

@@ -108,6 +108,17 @@ describe('the holder answers from the mailed link', () => {
     expect(list.json.campaigns[0]).toMatchObject({ id, confirmed: 1, holders: 2 });
   });
 
+  test('a holder whose e-mail is cleared after the mail went: the campaign still reads, the address shown as none', async () => {
+    const id = (await h.db('key_campaigns').first('id')).id;
+    const ada = (await h.db('key_holders').where({ name: 'Ada Quill (demo)' }).first('id', 'email'));
+    const cleared = await h.call('PATCH', `/api/holders/${ada.id}`, { token: lead, body: { email: null } });
+    expect(cleared.status).toBe(200);
+    const res = await h.call('GET', `/api/key-campaigns/${id}`, { token: lead });
+    expect(res.status).toBe(200);
+    expect(res.json.campaign.people.find((p: { name: string }) => p.name === 'Ada Quill (demo)')).toMatchObject({ email: null });
+    await h.call('PATCH', `/api/holders/${ada.id}`, { token: lead, body: { email: ada.email } });
+  });
+
   test('an expired link or a made-up token: refused alike, nothing written', async () => {
     const [mail] = await h.mailTo('ada@demo.corewright.test');
     const token = tokenFrom(mail!.text);
