@@ -17,9 +17,10 @@ import { devicesRouter } from './routes/devices';
 import { doorsRouter } from './routes/doors';
 import { healthRouter } from './routes/health';
 import { holdersRouter } from './routes/holders';
-import { keyCampaignLinksRouter, keyCampaignsRouter } from './routes/keyCampaigns';
+import { keyAuditLinksRouter, keyAuditsRouter } from './routes/keyAudits';
 import { keyExposureRouter } from './routes/keyExposure';
 import { keyIssuesRouter } from './routes/keyIssues';
+import { keyReissueRouter } from './routes/keyReissue';
 import { keyRequestLinksRouter, keyRequestsRouter } from './routes/keyRequests';
 import { keySystemsRouter } from './routes/keySystems';
 import { profilesRouter } from './routes/profiles';
@@ -85,7 +86,7 @@ export function createApp({ db, config, mailer, smtp, log }: AppDeps): Express {
   else api.use('/dev', notFoundApi);
   // The authoriser's and the holder's mailed links need no sign-in: the single-use token is the credential.
   api.use(keyRequestLinksRouter(ctx));
-  api.use(keyCampaignLinksRouter(ctx));
+  api.use(keyAuditLinksRouter(ctx));
   api.use(requireAuth(db, config));
   // Every router below states its roles with allow(...).
   api.use(usersRouter(ctx));
@@ -103,7 +104,8 @@ export function createApp({ db, config, mailer, smtp, log }: AppDeps): Express {
   api.use(keyIssuesRouter(ctx));
   api.use(keyExposureRouter(ctx));
   api.use(keyRequestsRouter(ctx));
-  api.use(keyCampaignsRouter(ctx));
+  api.use(keyAuditsRouter(ctx));
+  api.use(keyReissueRouter(ctx));
   api.use(notFoundApi);
   app.use('/api', api);
 

@@ -62,7 +62,7 @@ export const actionWords: Record<string, string> = {
   'key-report.work-order': 'Planned the rekey after a lost key',
   'key-report.closed': 'Closed a lost key report (new cores installed, old key retired)',
   'key.reissued': 'Issued the new key for a retired one',
-  'key-campaign.started': 'Started a key audit campaign',
+  'key-campaign.started': 'Started a key audit',
   'key-campaign.answered': 'A holder confirmed their keys',
   'key-request.created': 'Asked for a key',
   'key-request.decided': 'Decided a key request',

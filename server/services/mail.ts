@@ -74,7 +74,7 @@ export const mails = {
       text: `Hello ${o.holder},\n\nKey ${o.symbol}, copy ${o.copy}, issued to you, was due back on ${o.due}. Please return it to the key office, or tell them if you still need it.\n`,
     };
   },
-  keyCampaign(o: { holder: string; number: number; title: string; copies: { keySymbol: string; copyNumber: number }[]; expires: string; link: string }): Omit<Mail, 'to'> {
+  keyAudit(o: { holder: string; number: number; title: string; copies: { keySymbol: string; copyNumber: number }[]; expires: string; link: string }): Omit<Mail, 'to'> {
     return {
       subject: `Key audit #${o.number}: please confirm the keys you hold`,
       text: `Hello ${o.holder},\n\nThe key office is checking who holds which key (${o.title}). Our records show these keys issued to you:\n${o.copies.map((c) => `- key ${c.keySymbol}, copy ${c.copyNumber}`).join('\n')}\n\nPlease say which you still hold, and flag any you cannot find, here (the link works once, until ${o.expires}; no sign-in needed):\n${o.link}\n`,

@@ -50,8 +50,8 @@ const consoleRoutes: RouteRecordRaw[] = [
   { path: 'key-reports', name: 'keyReports.list', component: () => import('@/pages/KeyReportsPage.vue'), meta: { roles: office, title: 'Lost keys' } },
   { path: 'key-reports/:id', name: 'keyReports.detail', component: () => import('@/pages/KeyReportPage.vue'), meta: { roles: office, title: 'Lost key' } },
   { path: 'key-reissue', name: 'reissueTasks.list', component: () => import('@/pages/ReissueTasksPage.vue'), meta: { roles: office, title: 'Re-issue tasks' } },
-  { path: 'key-audits', name: 'keyCampaigns.list', component: () => import('@/pages/KeyCampaignsPage.vue'), meta: { roles: office, title: 'Key audits' } },
-  { path: 'key-audits/:id', name: 'keyCampaigns.detail', component: () => import('@/pages/KeyCampaignPage.vue'), meta: { roles: office, title: 'Key audit' } },
+  { path: 'key-audits', name: 'keyAudits.list', component: () => import('@/pages/KeyAuditsPage.vue'), meta: { roles: office, title: 'Key audits' } },
+  { path: 'key-audits/:id', name: 'keyAudits.detail', component: () => import('@/pages/KeyAuditPage.vue'), meta: { roles: office, title: 'Key audit' } },
   // The old address keeps working (bookmarks, links in mail), filters included.
   { path: 'audit', redirect: (to) => ({ name: 'auditTrail.list', query: to.query }) },
 ];
@@ -96,5 +96,5 @@ export const navigation = [
   { name: 'keyRequests.list', label: 'Key requests', icon: 'how_to_reg', group: 'Key control' },
   { name: 'keyIssues.list', label: 'Keys issued', icon: 'vpn_key', group: 'Key control' },
   { name: 'keyReports.list', label: 'Lost keys', icon: 'report', group: 'Key control' },
-  { name: 'keyCampaigns.list', label: 'Key audits', icon: 'fact_check', group: 'Key control' },
+  { name: 'keyAudits.list', label: 'Key audits', icon: 'fact_check', group: 'Key control' },
 ] as const;

@@ -40,6 +40,8 @@ export interface Harness {
   smtp: FakeSmtp;
   /** Mail captured by the fake SMTP server for this address, waiting briefly for it to arrive. */
   mailTo(address: string, count?: number): Promise<CapturedMail[]>;
+  /** One request without following redirects (an old path's 308): the status and where it points. */
+  unfollowed(method: string, path: string, token?: string, body?: unknown): Promise<{ status: number; location: string | null }>;
   base: string;
   call(method: string, path: string, opts?: CallOptions): Promise<Reply>;
   /** Signs in as a tablet would, naming a device (a fresh one unless given; null for none). */
@@ -131,12 +133,22 @@ export async function startHarness(env: Record<string, string> = {}, opts: { dem
     for (let i = 0; i < 50 && mine().length < count; i++) await new Promise((r) => setTimeout(r, 100));
     return mine();
   }
+  async function unfollowed(method: string, path: string, token?: string, body?: unknown): Promise<{ status: number; location: string | null }> {
+    const res = await fetch(base + path, {
+      method,
+      redirect: 'manual',
+      headers: { ...(token ? { Authorization: `Bearer ${token}` } : {}), ...(body ? { 'Content-Type': 'application/json' } : {}) },
+      ...(body ? { body: JSON.stringify(body) } : {}),
+    });
+    await res.arrayBuffer();
+    return { status: res.status, location: res.headers.get('location') };
+  }
   async function reset(): Promise<void> {
     tokens.clear();
     smtp.messages.length = 0;
     await resetDatabase(db, opts.demo ? { demo: sealer } : {});
   }
-  return { db, config, sealer, smtp, mailTo, base, call, signIn, tokenFor, reset, close };
+  return { db, config, sealer, smtp, mailTo, unfollowed, base, call, signIn, tokenFor, reset, close };
 }
 
 export async function countRows(db: Db, ...tables: string[]): Promise<Record<string, number>> {

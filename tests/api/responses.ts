@@ -19,7 +19,7 @@ import { InstallMismatchList, InstallReview } from '../../shared/schemas/install
 import { KeyIds, KeyList, KeyOperatesList, KeyReplacement, KeySystemAnswer, KeySystemList } from '../../shared/schemas/keySystems';
 import { CutList, DepartmentAnswer, DepartmentList, HolderAnswer, HolderList, KeyIssueAnswer, KeyIssueList, OutstandingKeys } from '../../shared/schemas/keyControl';
 import { DoorAccess, ExposureAnswer, HolderAccess, KeyReportAnswer, KeyReportList } from '../../shared/schemas/keyControlExposure';
-import { CampaignLinkAnswer, KeyCampaignAnswer, KeyCampaignList } from '../../shared/schemas/keyControlCampaigns';
+import { KeyAuditLinkAnswer, KeyAuditAnswer, KeyAuditList } from '../../shared/schemas/keyControlKeyAudits';
 import { RekeyPlanAnswer, RekeyWorkOrderDone } from '../../shared/schemas/keyControlRekey';
 import { ReissueTaskAnswer, ReissueTaskList } from '../../shared/schemas/keyControlReissue';
 import { KeyProposal, KeyRequestAnswer, KeyRequestList, LinkRequestAnswer } from '../../shared/schemas/keyControlRequests';
@@ -73,13 +73,19 @@ export const answers: Record<string, Answer> = {
   'POST /api/key-requests/:id/decision': json(KeyRequestAnswer),
   'POST /api/key-request-links/view': json(LinkRequestAnswer),
   'POST /api/key-request-links/decide': json(LinkRequestAnswer),
-  'POST /api/key-campaigns': json(KeyCampaignAnswer),
-  'GET /api/key-campaigns': json(KeyCampaignList),
-  'GET /api/key-campaigns/:id': json(KeyCampaignAnswer),
+  'POST /api/key-audits': json(KeyAuditAnswer),
+  'GET /api/key-audits': json(KeyAuditList),
+  'GET /api/key-audits/:id': json(KeyAuditAnswer),
   'GET /api/key-reissue-tasks': json(ReissueTaskList),
   'POST /api/key-reissue-tasks/:id/issue': json(ReissueTaskAnswer),
-  'POST /api/key-campaign-links/view': json(CampaignLinkAnswer),
-  'POST /api/key-campaign-links/confirm': json(CampaignLinkAnswer),
+  'POST /api/key-audit-links/view': json(KeyAuditLinkAnswer),
+  'POST /api/key-audit-links/confirm': json(KeyAuditLinkAnswer),
+  // The key audit's paths before the rename: a 308 to the new ones.
+  'POST /api/key-campaigns': moved,
+  'GET /api/key-campaigns': moved,
+  'GET /api/key-campaigns/:id': moved,
+  'POST /api/key-campaign-links/view': moved,
+  'POST /api/key-campaign-links/confirm': moved,
   'POST /api/auth/sign-in': json(SignInResponse),
   'POST /api/auth/refresh': json(SignInResponse),
   'POST /api/auth/set-password': json(PasswordSet),

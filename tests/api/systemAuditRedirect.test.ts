@@ -17,22 +17,10 @@ beforeAll(async () => {
 });
 afterAll(async () => h.close());
 
-/** One request without following redirects: the status and where it points. */
-async function unfollowed(method: string, path: string, token: string, body?: unknown): Promise<{ status: number; location: string | null }> {
-  const res = await fetch(h.base + path, {
-    method,
-    redirect: 'manual',
-    headers: { Authorization: `Bearer ${token}`, ...(body ? { 'Content-Type': 'application/json' } : {}) },
-    ...(body ? { body: JSON.stringify(body) } : {}),
-  });
-  await res.arrayBuffer();
-  return { status: res.status, location: res.headers.get('location') };
-}
-
 describe('the old system audit paths (RFC 9110 15.4.9, 308 Permanent Redirect)', () => {
   test('GET /api/key-systems/:id/audit answers 308 to /system-audit, the query kept', async () => {
-    expect(await unfollowed('GET', `/api/key-systems/${demoId}/audit`, lead)).toEqual({ status: 308, location: `/api/key-systems/${demoId}/system-audit` });
-    expect(await unfollowed('GET', `/api/key-systems/${demoId}/audit?x=1`, lead)).toEqual({ status: 308, location: `/api/key-systems/${demoId}/system-audit?x=1` });
+    expect(await h.unfollowed('GET', `/api/key-systems/${demoId}/audit`, lead)).toEqual({ status: 308, location: `/api/key-systems/${demoId}/system-audit` });
+    expect(await h.unfollowed('GET', `/api/key-systems/${demoId}/audit?x=1`, lead)).toEqual({ status: 308, location: `/api/key-systems/${demoId}/system-audit?x=1` });
   });
 
   test('followed, the old GET gives the same report as the new path (control: the new path itself)', async () => {
@@ -45,7 +33,7 @@ describe('the old system audit paths (RFC 9110 15.4.9, 308 Permanent Redirect)',
   });
 
   test('POST .../audit/acknowledgements answers 308 and, followed, keeps its body: the acknowledgement is stored once', async () => {
-    expect(await unfollowed('POST', `/api/key-systems/${demoId}/audit/acknowledgements`, admin, {})).toEqual({ status: 308, location: `/api/key-systems/${demoId}/system-audit/acknowledgements` });
+    expect(await h.unfollowed('POST', `/api/key-systems/${demoId}/audit/acknowledgements`, admin, {})).toEqual({ status: 308, location: `/api/key-systems/${demoId}/system-audit/acknowledgements` });
     const finding = (await h.call('GET', `/api/key-systems/${demoId}/system-audit`, { token: admin })).json.findings.find((f: { code: string }) => f.code === 'change-keys-one-apart');
     const before = await countRows(h.db, 'audit_acknowledgements');
     const res = await h.call('POST', `/api/key-systems/${demoId}/audit/acknowledgements`, { token: admin, body: { fingerprint: finding.fingerprint, note: 'Accepted through the old path.' } });

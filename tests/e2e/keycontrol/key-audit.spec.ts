@@ -20,17 +20,17 @@ test('a key audit: started by the office, answered from the mailed link, the mis
   const lead = await apiSignIn(page.request, demo.supervisor);
   await page.getByRole('link', { name: 'Key audits', exact: true }).click();
   expect(await smallTargets(page, 48), 'the key audits page').toEqual([]);
-  await page.getByTestId('campaign-add').click();
-  await page.getByTestId('campaign-title').fill('Library winter key audit');
-  await page.getByTestId('campaign-department').click();
+  await page.getByTestId('key-audit-add').click();
+  await page.getByTestId('key-audit-title').fill('Library winter key audit');
+  await page.getByTestId('key-audit-department').click();
   await page.getByRole('option', { name: 'Library Services' }).click();
   await shot(page, 'start');
   expect(await smallTargets(page, 48), 'the start form').toEqual([]);
-  await page.getByTestId('campaign-start').click();
+  await page.getByTestId('key-audit-start').click();
 
   await expect(page).toHaveURL(/\/key-audits\/[0-9a-f-]{36}$/);
-  await expect(page.getByTestId('campaign-summary')).toContainText('0 of 2 holders answered');
-  await expect(page.getByTestId('campaign-answered-Bo Linden (demo)')).toContainText('Not answered');
+  await expect(page.getByTestId('key-audit-summary')).toContainText('0 of 2 holders answered');
+  await expect(page.getByTestId('key-audit-answered-Bo Linden (demo)')).toContainText('Not answered');
   expect(await smallTargets(page, 48), 'the key audit page').toEqual([]);
 
   const mail = await waitForMail(page.request, 'bo@demo.corewright.test', /Key audit #\d+: please confirm the keys you hold/);
@@ -60,13 +60,13 @@ test('a key audit: started by the office, answered from the mailed link, the mis
 
   // The office: Bo answered, Ada not yet (first); AB5 #1 flagged missing opens a lost report.
   await page.reload();
-  await expect(page.getByTestId('campaign-summary')).toContainText('1 of 2 holders answered');
-  await expect(page.getByTestId('campaign-people').locator('tbody tr').first()).toContainText('Ada Quill (demo)');
-  await expect(page.getByTestId('campaign-copy-AB5 #1')).toContainText('missing');
+  await expect(page.getByTestId('key-audit-summary')).toContainText('1 of 2 holders answered');
+  await expect(page.getByTestId('key-audit-people').locator('tbody tr').first()).toContainText('Ada Quill (demo)');
+  await expect(page.getByTestId('key-audit-copy-AB5 #1')).toContainText('missing');
   await shot(page, 'report');
-  await page.getByTestId('campaign-report-AB5 #1').click();
+  await page.getByTestId('key-audit-report-AB5 #1').click();
   await expect(page.getByRole('heading', { level: 1 })).toContainText('Key AB5 #1 lost');
-  await expect(page.getByTestId('report-note-text')).toContainText('key audit campaign');
+  await expect(page.getByTestId('report-note-text')).toContainText('key audit #');
   await page.getByRole('link', { name: 'Lost keys', exact: true }).click();
   await expect(page.getByTestId('report-row-AB5 #1')).toBeVisible();
   // Beside the lost copies: what the control key exposes, every installed core of the system (one per door holding a core).

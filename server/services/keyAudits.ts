@@ -1,13 +1,17 @@
 /**
- * Key audit campaigns. Starting one over a key system or a department asks every holder with
- * copies out in it, by a mailed link (a random token of which only the SHA-256 is stored, single
- * use, expiring with the campaign), which copies they still hold. A copy flagged missing opens a
+ * Key audits. Starting one over a key system or a department asks every holder with copies out
+ * in it, by a mailed link (a random token of which only the SHA-256 is stored, single use,
+ * expiring with the key audit), which copies they still hold. A copy flagged missing opens a
  * lost report (reportKey, the exposure computed as for any report) in the office's queue. The
- * campaign's page is the report of who has answered and who has not.
+ * key audit's page is the report of who has answered and who has not.
+ *
+ * The tables keep the names they were stored under (`key_campaigns`, `key_campaign_holders`,
+ * `key_campaign_copies`, `key_campaign_number_seq`, the column `campaign_id`): a key audit is one
+ * row of `key_campaigns` (DEVELOPERS.md, Words, "key audit").
  */
 import { randomBytes } from 'node:crypto';
 import type { Knex } from 'knex';
-import { CAMPAIGN_LINK_DAYS, type CampaignConfirm, type CampaignLinkAnswer, type KeyCampaign, type KeyCampaignInput, type KeyCampaignSummary } from '../../shared/schemas/keyControlCampaigns';
+import { KEY_AUDIT_LINK_DAYS, type KeyAuditConfirm, type KeyAuditLinkAnswer, type KeyAudit, type KeyAuditInput, type KeyAuditSummary } from '../../shared/schemas/keyControlKeyAudits';
 import { naturalCompare } from '../../shared/words';
 import { badRequest, conflict, HttpError, notFound } from '../errors';
 import { reportKey } from './keyReports';
@@ -16,7 +20,7 @@ import { sha256 } from './tokens';
 
 interface OutCopy { issueId: string; holderId: string; name: string; email: string | null; keySymbol: string; copyNumber: number }
 
-export interface StartedCampaign {
+export interface StartedKeyAudit {
   id: string;
   number: number;
   title: string;
@@ -24,7 +28,7 @@ export interface StartedCampaign {
   links: { name: string; email: string; token: string; copies: { keySymbol: string; copyNumber: number }[] }[];
 }
 
-export async function startCampaign(db: Knex, input: KeyCampaignInput, by: string): Promise<StartedCampaign> {
+export async function startKeyAudit(db: Knex, input: KeyAuditInput, by: string): Promise<StartedKeyAudit> {
   const scope = input.keySystemId ? await db('key_systems').where({ id: input.keySystemId }).first('id') : await db('departments').where({ id: input.departmentId! }).first('id');
   if (!scope) throw badRequest(input.keySystemId ? 'There is no key system with that id.' : 'There is no department with that id.', [{ field: input.keySystemId ? 'keySystemId' : 'departmentId', message: 'unknown' }]);
   const q = db('key_issues as i').join('key_holders as h', 'h.id', 'i.holder_id').join('keys as k', 'k.id', 'i.key_id').where('i.status', 'out');
@@ -34,9 +38,9 @@ export async function startCampaign(db: Knex, input: KeyCampaignInput, by: strin
   const asked = copies.filter((c) => c.email);
   if (!asked.length) throw conflict('No holder with an e-mail on record has a key out in that scope: there is no one to ask.', [{ field: input.keySystemId ? 'keySystemId' : 'departmentId', message: 'no one to ask' }]);
   const { nextval } = ((await db.raw(`select nextval('key_campaign_number_seq')::int as nextval`)).rows as { nextval: number }[])[0]!;
-  const expiresAt = new Date(Date.now() + CAMPAIGN_LINK_DAYS * 86400_000);
+  const expiresAt = new Date(Date.now() + KEY_AUDIT_LINK_DAYS * 86400_000);
   const [row] = await db('key_campaigns').insert({ number: nextval, title: input.title, key_system_id: input.keySystemId ?? null, department_id: input.departmentId ?? null, expires_at: expiresAt, created_by: by }).returning('id');
-  const links: StartedCampaign['links'] = [];
+  const links: StartedKeyAudit['links'] = [];
   for (const holderId of [...new Set(asked.map((c) => c.holderId))]) {
     const mine = asked.filter((c) => c.holderId === holderId).sort((a, b) => naturalCompare(a.keySymbol, b.keySymbol) || a.copyNumber - b.copyNumber);
     const token = randomBytes(32).toString('base64url');
@@ -47,7 +51,7 @@ export async function startCampaign(db: Knex, input: KeyCampaignInput, by: strin
   return { id: row.id as string, number: nextval, title: input.title, expiresAt, links };
 }
 
-interface CopyRow { campaignId: string; holderId: string; name: string; department: string; email: string | null; answeredAt: Date | null; issueId: string; keySymbol: string; copyNumber: number; answer: 'held' | 'missing' | null; reportId: string | null }
+interface CopyRow { keyAuditId: string; holderId: string; name: string; department: string; email: string | null; answeredAt: Date | null; issueId: string; keySymbol: string; copyNumber: number; answer: 'held' | 'missing' | null; reportId: string | null }
 
 function copiesQuery(db: Knex) {
   return db('key_campaign_copies as cc')
@@ -56,19 +60,19 @@ function copiesQuery(db: Knex) {
     .join('departments as d', 'd.id', 'h.department_id')
     .join('key_issues as i', 'i.id', 'cc.issue_id')
     .join('keys as k', 'k.id', 'i.key_id')
-    .select('ch.campaign_id as campaignId', 'h.id as holderId', 'h.name', 'd.name as department', 'h.email', 'ch.answered_at as answeredAt', 'i.id as issueId', 'k.symbol as keySymbol', 'i.copy_number as copyNumber', 'cc.answer', 'cc.report_id as reportId');
+    .select('ch.campaign_id as keyAuditId', 'h.id as holderId', 'h.name', 'd.name as department', 'h.email', 'ch.answered_at as answeredAt', 'i.id as issueId', 'k.symbol as keySymbol', 'i.copy_number as copyNumber', 'cc.answer', 'cc.report_id as reportId');
 }
 
 const iso = (d: Date | null) => (d ? new Date(d).toISOString() : null);
 
-async function summaries(db: Knex, id?: string): Promise<(KeyCampaignSummary & { rows: CopyRow[] })[]> {
+async function summaries(db: Knex, id?: string): Promise<(KeyAuditSummary & { rows: CopyRow[] })[]> {
   const q = db('key_campaigns as c').leftJoin('key_systems as s', 's.id', 'c.key_system_id').leftJoin('departments as d', 'd.id', 'c.department_id').orderBy('c.number', 'desc').select('c.id', 'c.number', 'c.title', 'c.key_system_id', 'c.department_id', 's.name as systemName', 'd.name as departmentName', 'c.created_at', 'c.expires_at');
   if (id) q.where('c.id', id);
-  const campaigns = (await q.limit(200)) as { id: string; number: number; title: string; key_system_id: string | null; department_id: string | null; systemName: string | null; departmentName: string | null; created_at: Date; expires_at: Date }[];
-  const rows = (await copiesQuery(db).whereIn('ch.campaign_id', campaigns.map((c) => c.id))) as CopyRow[];
+  const audits = (await q.limit(200)) as { id: string; number: number; title: string; key_system_id: string | null; department_id: string | null; systemName: string | null; departmentName: string | null; created_at: Date; expires_at: Date }[];
+  const rows = (await copiesQuery(db).whereIn('ch.campaign_id', audits.map((c) => c.id))) as CopyRow[];
   const out = [];
-  for (const c of campaigns) {
-    const mine = rows.filter((r) => r.campaignId === c.id);
+  for (const c of audits) {
+    const mine = rows.filter((r) => r.keyAuditId === c.id);
     const people = new Set(mine.map((r) => r.holderId));
     const answered = new Set(mine.filter((r) => r.answeredAt).map((r) => r.holderId));
     // Holders with keys out in the scope today but no e-mail: not asked.
@@ -93,15 +97,15 @@ async function summaries(db: Knex, id?: string): Promise<(KeyCampaignSummary & {
   return out;
 }
 
-export async function listCampaigns(db: Knex): Promise<KeyCampaignSummary[]> {
+export async function listKeyAudits(db: Knex): Promise<KeyAuditSummary[]> {
   return (await summaries(db)).map(({ rows: _r, ...s }) => s);
 }
 
-export async function getCampaign(db: Knex, id: string): Promise<KeyCampaign> {
+export async function getKeyAudit(db: Knex, id: string): Promise<KeyAudit> {
   const [found] = await summaries(db, id);
-  if (!found) throw notFound('That key audit campaign');
+  if (!found) throw notFound('That key audit');
   const { rows, ...summary } = found;
-  const people: KeyCampaign['people'] = [];
+  const people: KeyAudit['people'] = [];
   for (const r of rows) {
     let p = people.find((x) => x.holderId === r.holderId);
     if (!p) people.push((p = { holderId: r.holderId, name: r.name, department: r.department, email: r.email, answeredAt: iso(r.answeredAt), copies: [] }));
@@ -123,23 +127,23 @@ async function openLink(db: Knex, token: string, lock: boolean) {
   return link as { id: string; expires_at: Date; number: number; title: string; name: string };
 }
 
-async function linkAnswer(db: Knex, link: { id: string; expires_at: Date; number: number; title: string; name: string }): Promise<CampaignLinkAnswer> {
+async function linkAnswer(db: Knex, link: { id: string; expires_at: Date; number: number; title: string; name: string }): Promise<KeyAuditLinkAnswer> {
   const rows = (await copiesQuery(db).where('ch.id', link.id)) as CopyRow[];
   rows.sort((a, b) => naturalCompare(a.keySymbol, b.keySymbol) || a.copyNumber - b.copyNumber);
   return {
-    campaign: { number: link.number, title: link.title, expiresAt: iso(link.expires_at)! },
+    keyAudit: { number: link.number, title: link.title, expiresAt: iso(link.expires_at)! },
     holder: { name: link.name },
     answeredAt: iso(rows[0]?.answeredAt ?? null),
     copies: rows.map((r) => ({ issueId: r.issueId, keySymbol: r.keySymbol, copyNumber: r.copyNumber, answer: r.answer })),
   };
 }
 
-export async function viewCampaignLink(db: Knex, token: string): Promise<CampaignLinkAnswer> {
+export async function viewKeyAuditLink(db: Knex, token: string): Promise<KeyAuditLinkAnswer> {
   return linkAnswer(db, await openLink(db, token, false));
 }
 
 /** The holder's answer, once: every copy listed held or missing; a missing one opens a lost report. */
-export async function confirmByLink(db: Knex, sealer: Sealer, input: CampaignConfirm): Promise<{ answer: CampaignLinkAnswer; reports: string[]; name: string }> {
+export async function confirmByLink(db: Knex, sealer: Sealer, input: KeyAuditConfirm): Promise<{ answer: KeyAuditLinkAnswer; reports: string[]; name: string }> {
   const link = await openLink(db, input.token, true);
   const listed = await db('key_campaign_copies').where({ campaign_holder_id: link.id }).select<{ id: string; issue_id: string }[]>('id', 'issue_id');
   const given = new Map(input.copies.map((c) => [c.issueId, c.held]));
@@ -153,9 +157,9 @@ export async function confirmByLink(db: Knex, sealer: Sealer, input: CampaignCon
     const held = given.get(l.issue_id)!;
     let reportId: string | null = null;
     const issue = await db('key_issues').where({ id: l.issue_id }).first('status');
-    // A copy returned or reported since the campaign began needs no new report.
+    // A copy returned or reported since the key audit began needs no new report.
     if (!held && issue?.status === 'out') {
-      reportId = await reportKey(db, sealer, l.issue_id, { kind: 'lost', note: `Flagged missing by the holder in key audit campaign #${link.number} (${link.title}).` }, null);
+      reportId = await reportKey(db, sealer, l.issue_id, { kind: 'lost', note: `Flagged missing by the holder in key audit #${link.number} (${link.title}).` }, null);
       reports.push(reportId);
     }
     await db('key_campaign_copies').where({ id: l.id }).update({ answer: held ? 'held' : 'missing', report_id: reportId });
