@@ -3,13 +3,14 @@ import { keyOperates } from './keyOperates';
 import { pinCore } from './pinCore';
 import { builtInProfiles } from './profiles';
 import { smallKit } from './testing/arbitraries';
-import type { Profile } from './types';
+import type { CorePinning, Profile } from './types';
 
 const sfic7 = builtInProfiles['sfic-7'] as Profile;
 
 // Worked examples of our own, on the primer's example core: change 2s, master 6s, control 4s.
 describe('keyOperates', () => {
-  const pinning = pinCore(sfic7, { operating: ['2222222', '6666666'], control: '4444444' });
+  // Pinned inside each test, so every test that reads the chart also runs pinCore (mutation testing counts it).
+  const pinning = (): CorePinning => pinCore(sfic7, { operating: ['2222222', '6666666'], control: '4444444' });
 
   test.each([
     ['change key', '2222222', true, false],
@@ -19,15 +20,15 @@ describe('keyOperates', () => {
     ['a key off by one chamber', '2222224', false, false],
     ['a stranger', '1357913', false, false],
   ])('%s %s: plug %s, control %s', (_, bitting, plug, control) => {
-    expect(keyOperates(pinning, sfic7, bitting)).toEqual({ plug, control });
+    expect(keyOperates(pinning(), sfic7, bitting)).toEqual({ plug, control });
   });
 
   test('takes depths already read', () => {
-    expect(keyOperates(pinning, sfic7, [6, 2, 6, 2, 6, 2, 6])).toEqual({ plug: true, control: false });
+    expect(keyOperates(pinning(), sfic7, [6, 2, 6, 2, 6, 2, 6])).toEqual({ plug: true, control: false });
   });
 
   test('an unreadable bitting throws, as parseBitting does', () => {
-    expect(() => keyOperates(pinning, sfic7, '22')).toThrow(expect.objectContaining({ code: 'bitting-length' }));
+    expect(() => keyOperates(pinning(), sfic7, '22')).toThrow(expect.objectContaining({ code: 'bitting-length' }));
   });
 
   test('a pinning without chambers turns nothing', () => {

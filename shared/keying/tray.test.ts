@@ -13,12 +13,16 @@ describe('trayFor: worked example of our own', () => {
   // Two cores under one master (all 6s), control all 3s.
   //  core 1: change 2s → bottom 2, wafer 4, build-up 3 + 10 - 6 = 7, top 10 in every chamber
   //  core 2: change 0s → bottom 0, wafer 6, build-up 7, top 10
-  const a = pinCore(sfic6, { operating: ['222222', '666666'], control: '333333' });
-  const b = pinCore(sfic6, { operating: ['000000', '666666'], control: '333333' });
-  const broken = pinCore(sfic6, { operating: ['000000', '100000'], control: '333333' }); // 1-unit wafer
-  const tray = trayFor(sfic6, [a, broken, b]);
+  // Pinned and counted inside each test, so mutation testing counts these tests for pinCore and trayFor.
+  const worked = () => {
+    const a = pinCore(sfic6, { operating: ['222222', '666666'], control: '333333' });
+    const b = pinCore(sfic6, { operating: ['000000', '666666'], control: '333333' });
+    const broken = pinCore(sfic6, { operating: ['000000', '100000'], control: '333333' }); // 1-unit wafer
+    return trayFor(sfic6, [a, broken, b]);
+  };
 
   test('counts each part per chamber', () => {
+    const tray = worked();
     expect(tray.perChamber).toHaveLength(6);
     expect(tray.perChamber[0]).toEqual({
       chamber: 1,
@@ -30,11 +34,13 @@ describe('trayFor: worked example of our own', () => {
   });
 
   test('totals are the sum over chambers', () => {
+    const tray = worked();
     expect(tray.totals.bottom).toEqual([{ size: 0, count: 6 }, { size: 2, count: 6 }]);
     expect(tray.totals.top).toEqual([{ size: 10, count: 12 }]);
   });
 
   test('pinnings with errors are left out and listed', () => {
+    const tray = worked();
     expect(tray.cores).toBe(2);
     expect(tray.skipped).toEqual([1]);
   });

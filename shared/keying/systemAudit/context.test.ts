@@ -1,7 +1,7 @@
 import { describe, expect, test } from 'vitest';
 import { builtInProfiles } from '../profiles';
 import type { Profile } from '../types';
-import { buildContext, levelOf } from './context';
+import { buildContext, levelOf, type SystemAuditContext } from './context';
 import type { SystemAuditInput, SystemAuditKey } from './types';
 
 /*
@@ -40,9 +40,11 @@ describe('buildContext resolves the records', () => {
       { id: 'c0', operating: ['k1'] },
     ],
   };
-  const ctx = buildContext(sfic6, system)!;
+  // Built inside each test, so mutation testing counts these tests for buildContext.
+  const built = (): SystemAuditContext => buildContext(sfic6, system)!;
 
   test('the first record of a key id or a core id is the one referenced', () => {
+    const ctx = built();
     // c0's k0 is the first k0 (444444), not the later record cut 666666.
     expect(ctx.coreKeys[0]).toEqual([0, 4]);
     expect(ctx.openers[0]).toEqual([0, 4]);
@@ -50,12 +52,14 @@ describe('buildContext resolves the records', () => {
   });
 
   test('each core’s keys ascending and once, unreadable keys left out, unknown ones listed by core', () => {
+    const ctx = built();
     expect(ctx.coreKeys).toEqual([[0, 4], [0, 1], [1]]);
     expect(ctx.unknownKeys.get(0)).toEqual(['missing', 'also-missing']);
     expect(ctx.unknownKeys.has(1)).toBe(false);
   });
 
   test('openers ascending and once, though a key lists a core twice; unknown cores listed by key', () => {
+    const ctx = built();
     expect(ctx.openers[1]).toEqual([0, 1, 2]);
     expect(ctx.unknownCores.get(1)).toEqual(['nowhere', 'gone']);
     expect(ctx.validKeys).toEqual([0, 1, 2, 4]);

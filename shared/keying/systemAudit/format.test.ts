@@ -94,7 +94,8 @@ describe('finding order: errors, warnings, information; then by code, system ord
 });
 
 describe('names and ids of keys and cores by index', () => {
-  const ctx = buildContext(builtInProfiles['sfic-6'] as Profile, {
+  // Built inside the test, so mutation testing counts it for buildContext and the names.
+  const built = () => buildContext(builtInProfiles['sfic-6'] as Profile, {
     control: '999999',
     keys: [
       { id: 'k-a', symbol: 'AA1', bitting: '123456', opens: ['c-1'] },
@@ -103,6 +104,7 @@ describe('names and ids of keys and cores by index', () => {
     cores: [{ id: 'c-1', label: 'Room 101', operating: ['k-a'] }, { id: 'c-2', operating: ['k-b'] }],
   });
   test('symbols and ids in the order asked; a core without a label is named by its id', () => {
+    const ctx = built();
     if (!ctx) throw new Error('readable control bitting');
     expect(keyRefs(ctx, [1, 0])).toEqual({ keys: ['AA2', 'AA1'], keyIds: ['k-b', 'k-a'] });
     expect(keyRefs(ctx, [5])).toEqual({ keys: [''], keyIds: [''] });
