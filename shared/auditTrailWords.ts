@@ -58,6 +58,7 @@ export const actionWords: Record<string, string> = {
   'holders.imported': 'Imported key holders',
   'key.issued': 'Issued a key',
   'key.returned': 'Took back a key',
+  'key.transferred': 'Passed a key copy to another holder',
   'key.reported': 'Reported a key lost or stolen',
   'key-report.work-order': 'Planned the rekey after a lost key',
   'key-report.closed': 'Closed a lost key report (new cores installed, old key retired)',
@@ -87,7 +88,7 @@ export const actionGroups = [
   { label: 'Users and invitations', value: 'user.' },
   { label: 'Tablets and sync', value: 'device.,sync.' },
   { label: 'Access refused', value: 'access.denied' },
-  { label: 'Key control (holders, requests, issues, lost keys, audits)', value: 'department.,holder.,holders.,key-request.,key.issued,key.returned,key.reported,key.reissued,key-report.,key-campaign.' },
+  { label: 'Key control (holders, requests, issues, lost keys, audits)', value: 'department.,holder.,holders.,key-request.,key.issued,key.returned,key.transferred,key.reported,key.reissued,key-report.,key-campaign.' },
 ] as const;
 
 const whatWords: Record<string, string> = { control: 'the control key', keys: 'the key bittings', charts: 'the pinning charts', 'progression-preview': 'a progression preview' };

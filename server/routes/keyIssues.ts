@@ -1,12 +1,12 @@
 /** Key copies issued, returned and chased; the cut list (bittings) for supervisors and admins, audited. */
 import { Router } from 'express';
 import { Id } from '../../shared/schemas/common';
-import { CutListQuery, KeyIssueInput, KeyIssueQuery, KeyReturnInput } from '../../shared/schemas/keyControl';
+import { CutListQuery, KeyIssueInput, KeyIssueQuery, KeyReturnInput, KeyTransferInput } from '../../shared/schemas/keyControl';
 import type { Ctx } from '../context';
 import { actorOf, allow } from '../middleware/auth';
 import { parse } from '../middleware/validate';
 import { audit } from '../services/auditTrail';
-import { cutList, getIssue, issueKey, listIssues, outstandingKeys, returnKey } from '../services/keyIssues';
+import { cutList, getIssue, issueKey, listIssues, outstandingKeys, returnKey, transferKey } from '../services/keyIssues';
 
 const office = allow('supervisor', 'admin');
 
@@ -46,6 +46,17 @@ export function keyIssuesRouter({ db, sealer }: Ctx): Router {
       await audit(trx, actorOf(req), 'key.returned', { type: 'key-issue', id }, input.note ? { note: input.note } : {});
     });
     res.json({ issue: await getIssue(db, id) });
+  });
+  /** The copy passes to another holder with its copy number: authorised and acknowledged as an issue; answers the new record. */
+  r.post('/key-issues/:id/transfer', office, async (req, res) => {
+    const id = parse(Id, req.params.id, 'The key issue id');
+    const input = parse(KeyTransferInput, req.body, 'The transfer');
+    const created = await db.transaction(async (trx) => {
+      const done = await transferKey(trx, id, input, req.user!.id);
+      await audit(trx, actorOf(req), 'key.transferred', { type: 'key-issue', id: done.id }, { copy: done.copy, from: done.from, to: input.holderId, request: done.request, signed: Boolean(input.acknowledgement.signature) });
+      return done.id;
+    });
+    res.status(201).json({ issue: await getIssue(db, created) });
   });
   return r;
 }

@@ -1,10 +1,13 @@
 /**
  * Key copies issued one by one: holder, key symbol, copy number (the next of that key, never
- * reused), who issued and who authorised it, the holder's acknowledgement; returns, the keys
- * to chase, and the cut list (the only place here a bitting appears: restricted and audited).
+ * reused), who issued and who authorised it, the holder's acknowledgement; returns, transfers
+ * (the copy passes to another holder with its copy number; the old record closes, linked to the
+ * new one), the keys to chase, and the cut list (the only place here a bitting appears:
+ * restricted and audited).
  */
+import { randomUUID } from 'node:crypto';
 import type { Knex } from 'knex';
-import type { CutList, KeyIssue, KeyIssueInput, KeyIssueQuery, OutstandingKeys } from '../../shared/schemas/keyControl';
+import type { CutList, KeyIssue, KeyIssueInput, KeyIssueQuery, KeyTransferInput, OutstandingKeys, TransferLink } from '../../shared/schemas/keyControl';
 import { badRequest, conflict, notFound } from '../errors';
 import { keyContext } from './keySystems';
 import type { Sealer } from './secrets';
@@ -16,6 +19,10 @@ export function issueQuery(db: Knex) {
     .join('keys as k', 'k.id', 'i.key_id')
     .leftJoin('users as u', 'u.id', 'i.issued_by')
     .leftJoin('key_requests as r', 'r.id', 'i.request_id')
+    .leftJoin('key_issues as ti', 'ti.id', 'i.transferred_to')
+    .leftJoin('key_holders as th', 'th.id', 'ti.holder_id')
+    .leftJoin('key_issues as fi', 'fi.transferred_to', 'i.id')
+    .leftJoin('key_holders as fh', 'fh.id', 'fi.holder_id')
     .select(
       'i.id',
       'i.holder_id as holderId',
@@ -35,21 +42,46 @@ export function issueQuery(db: Knex) {
       db.raw('(i.ack_signature is not null) as "signed"'),
       'i.status',
       'i.returned_at as returnedAt',
+      'i.transferred_at as transferredAt',
+      'ti.id as toIssueId',
+      'th.id as toHolderId',
+      'th.name as toHolderName',
+      'fi.id as fromIssueId',
+      'fh.id as fromHolderId',
+      'fh.name as fromHolderName',
       db.raw(`coalesce(i.status = 'out' and i.due_date < current_date, false) as overdue`),
     );
 }
 
-interface IssueRow extends Omit<KeyIssue, 'acknowledgement' | 'issuedAt' | 'returnedAt'> {
+interface IssueRow extends Omit<KeyIssue, 'acknowledgement' | 'issuedAt' | 'returnedAt' | 'transferredAt' | 'transferredTo' | 'transferredFrom'> {
   holderStatus: 'active' | 'leaving' | 'left';
   ackName: string;
   signed: boolean;
   issuedAt: Date;
   returnedAt: Date | null;
+  transferredAt: Date | null;
+  toIssueId: string | null;
+  toHolderId: string | null;
+  toHolderName: string | null;
+  fromIssueId: string | null;
+  fromHolderId: string | null;
+  fromHolderName: string | null;
 }
 
+const iso = (d: Date | null) => (d ? new Date(d).toISOString() : null);
+const link = (issueId: string | null, holderId: string | null, holderName: string | null): TransferLink | null => (issueId && holderId && holderName ? { issueId, holderId, holderName } : null);
+
 export function issueOf(r: IssueRow): KeyIssue & { holderStatus: IssueRow['holderStatus'] } {
-  const { ackName, signed, ...rest } = r;
-  return { ...rest, issuedAt: new Date(r.issuedAt).toISOString(), returnedAt: r.returnedAt ? new Date(r.returnedAt).toISOString() : null, acknowledgement: { name: ackName, signed } };
+  const { ackName, signed, toIssueId, toHolderId, toHolderName, fromIssueId, fromHolderId, fromHolderName, ...rest } = r;
+  return {
+    ...rest,
+    issuedAt: new Date(r.issuedAt).toISOString(),
+    returnedAt: iso(r.returnedAt),
+    transferredAt: iso(r.transferredAt),
+    transferredTo: link(toIssueId, toHolderId, toHolderName),
+    transferredFrom: link(fromIssueId, fromHolderId, fromHolderName),
+    acknowledgement: { name: ackName, signed },
+  };
 }
 
 const publicIssue = ({ holderStatus: _s, ...issue }: ReturnType<typeof issueOf>): KeyIssue => issue;
@@ -83,19 +115,30 @@ const UNIQUE_VIOLATION = '23505';
  * itself; two parallel issues of one key collide on the unique (key_id, copy_number) index,
  * and the loser tries again inside a savepoint, so both get a number and none is shared.
  */
-export async function issueKey(db: Knex, input: KeyIssueInput, by: string): Promise<string> {
-  const holder = await db('key_holders').where({ id: input.holderId }).first('id', 'status', 'name');
+/** The holder who is to receive a key: known, and active (someone leaving or gone gets none). */
+async function receivingHolder(db: Knex, holderId: string, verb: string): Promise<{ id: string; name: string }> {
+  const holder = await db('key_holders').where({ id: holderId }).first('id', 'status', 'name');
   if (!holder) throw badRequest('There is no key holder with that id.', [{ field: 'holderId', message: 'unknown holder' }]);
-  if (holder.status !== 'active') throw conflict(`${holder.name} is marked ${holder.status}: no new keys are issued to them.`, [{ field: 'holderId', message: `holder ${holder.status}` }]);
+  if (holder.status !== 'active') throw conflict(`${holder.name} is marked ${holder.status}: no keys are ${verb} them.`, [{ field: 'holderId', message: `holder ${holder.status}` }]);
+  return holder;
+}
+
+/** A request named with an issue or a transfer: approved, and for this holder and key. */
+async function checkRequest(db: Knex, requestId: string | undefined, holderId: string, keyId: string): Promise<number | null> {
+  if (!requestId) return null;
+  const request = await db('key_requests').where({ id: requestId }).first('holder_id', 'key_id', 'status', 'number');
+  if (!request) throw badRequest('There is no key request with that id.', [{ field: 'requestId', message: 'unknown request' }]);
+  if (request.status !== 'approved') throw conflict(`Request #${request.number} is ${request.status}, not approved.`, [{ field: 'requestId', message: `request ${request.status}` }]);
+  if (request.holder_id !== holderId || request.key_id !== keyId) throw badRequest(`Request #${request.number} is for another holder or key.`, [{ field: 'requestId', message: 'another holder or key' }]);
+  return request.number as number;
+}
+
+export async function issueKey(db: Knex, input: KeyIssueInput, by: string): Promise<string> {
+  await receivingHolder(db, input.holderId, 'issued to');
   const key = await db('keys').where({ id: input.keyId }).first('id', 'status', 'symbol');
   if (!key) throw badRequest('There is no key with that id.', [{ field: 'keyId', message: 'unknown key' }]);
   if (key.status !== 'active') throw conflict(`Key ${key.symbol} is ${key.status}: no copies of it are issued.`, [{ field: 'keyId', message: `key ${key.status}` }]);
-  if (input.requestId) {
-    const request = await db('key_requests').where({ id: input.requestId }).first('holder_id', 'key_id', 'status', 'number');
-    if (!request) throw badRequest('There is no key request with that id.', [{ field: 'requestId', message: 'unknown request' }]);
-    if (request.status !== 'approved') throw conflict(`Request #${request.number} is ${request.status}, not approved.`, [{ field: 'requestId', message: `request ${request.status}` }]);
-    if (request.holder_id !== input.holderId || request.key_id !== input.keyId) throw badRequest(`Request #${request.number} is for another holder or key.`, [{ field: 'requestId', message: 'another holder or key' }]);
-  }
+  await checkRequest(db, input.requestId, input.holderId, input.keyId);
   for (let attempt = 1; ; attempt++) {
     try {
       return await db.transaction(async (sp) => {
@@ -118,6 +161,29 @@ export async function returnKey(db: Knex, id: string, by: string): Promise<void>
   if (!issue) throw notFound('That key issue');
   if (issue.status !== 'out') throw conflict(`This copy is ${issue.status}, not out: there is nothing to return.`, [{ field: 'status', message: issue.status }]);
   await db('key_issues').where({ id }).update({ status: 'returned', returned_at: db.fn.now(), returned_to: by });
+}
+
+/**
+ * Passes a copy that is out to another holder in one step: the old record closes as transferred,
+ * linked to the new record, which keeps the copy number and holds who authorised it (its request)
+ * and the new holder's acknowledgement. The old row is locked first, so two transfers of one copy
+ * cannot both pass. Refused, with nothing changed: a copy not out, the same holder, a holder not
+ * active, a key no longer active (its copies come back instead).
+ */
+export async function transferKey(db: Knex, id: string, input: KeyTransferInput, by: string): Promise<{ id: string; from: string; copy: string; request: string | null }> {
+  const old = await db('key_issues as i').join('keys as k', 'k.id', 'i.key_id').join('key_holders as h', 'h.id', 'i.holder_id').where('i.id', id).forUpdate('i').first<{ status: string; holderId: string; holderName: string; keyId: string; symbol: string; keyStatus: string; copy: number } | undefined>('i.status', 'i.holder_id as holderId', 'h.name as holderName', 'i.key_id as keyId', 'k.symbol', 'k.status as keyStatus', 'i.copy_number as copy');
+  if (!old) throw notFound('That key issue');
+  const copy = `${old.symbol} #${old.copy}`;
+  if (old.status !== 'out') throw conflict(`${copy} is ${old.status}, not out: only a copy that is out can pass to another holder.`, [{ field: 'status', message: old.status }]);
+  if (old.holderId === input.holderId) throw badRequest(`${old.holderName} holds ${copy} already: choose the person it passes to.`, [{ field: 'holderId', message: 'the same holder' }]);
+  await receivingHolder(db, input.holderId, 'passed to');
+  if (old.keyStatus !== 'active') throw conflict(`Key ${old.symbol} is ${old.keyStatus}: take ${copy} back instead of passing it on.`, [{ field: 'keyId', message: `key ${old.keyStatus}` }]);
+  const request = await checkRequest(db, input.requestId, input.holderId, old.keyId);
+  // Closed first (the link is checked at commit): the live record of a copy is unique, and the new one takes its copy number.
+  const next = randomUUID();
+  await db('key_issues').where({ id }).update({ status: 'transferred', transferred_at: db.fn.now(), transferred_to: next });
+  await db('key_issues').insert({ id: next, holder_id: input.holderId, key_id: old.keyId, copy_number: old.copy, request_id: input.requestId ?? null, issued_by: by, due_date: input.dueDate ?? null, ack_name: input.acknowledgement.name, ack_signature: input.acknowledgement.signature ?? null });
+  return { id: next, from: old.holderId, copy, request: request === null ? null : `#${request}` };
 }
 
 /** Copies out past their due date, or held by someone leaving or gone. */

@@ -73,8 +73,13 @@ export type Holder = z.infer<typeof Holder>;
 export const HolderList = z.object({ holders: z.array(Holder) });
 export type HolderList = z.infer<typeof HolderList>;
 
-export const IssueStatus = z.enum(['out', 'returned', 'lost', 'stolen']);
+/** `transferred`: the copy passed to another holder; the record it became keeps its copy number. */
+export const IssueStatus = z.enum(['out', 'returned', 'lost', 'stolen', 'transferred']);
 export type IssueStatus = z.infer<typeof IssueStatus>;
+
+/** The other side of a transfer: the record the copy passed to, or came from, and its holder. */
+export const TransferLink = z.object({ issueId: Id, holderId: Id, holderName: z.string() });
+export type TransferLink = z.infer<typeof TransferLink>;
 
 /** A key copy as issued: holder, key symbol and copy number, who issued and who authorised it. */
 export const KeyIssue = z.object({
@@ -94,6 +99,11 @@ export const KeyIssue = z.object({
   acknowledgement: z.object({ name: z.string(), signed: z.boolean() }),
   status: IssueStatus,
   returnedAt: z.string().nullable(),
+  /** When the copy passed to another holder (status `transferred`), and the record it became. */
+  transferredAt: z.string().nullable(),
+  transferredTo: TransferLink.nullable(),
+  /** The record this copy was passed on from, for a copy received by transfer. */
+  transferredFrom: TransferLink.nullable(),
   /** Out and past its due date. */
   overdue: z.boolean(),
 });
@@ -130,6 +140,15 @@ export const KeyIssueInput = z.strictObject({
   acknowledgement: Acknowledgement,
 });
 export type KeyIssueInput = z.infer<typeof KeyIssueInput>;
+
+/** A copy that is out passed to another holder in one step: authorised and acknowledged as an issue. */
+export const KeyTransferInput = z.strictObject({
+  holderId: Id,
+  requestId: Id.optional(),
+  dueDate: IsoDate.optional(),
+  acknowledgement: Acknowledgement,
+});
+export type KeyTransferInput = z.infer<typeof KeyTransferInput>;
 
 export const KeyIssueQuery = z.strictObject({
   holderId: Id.optional(),

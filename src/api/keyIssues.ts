@@ -1,5 +1,5 @@
 /** Key copies issued, returned and chased; the cut list (bittings: office roles only, every view audited). */
-import { CutList, KeyIssueAnswer, KeyIssueList, OutstandingKeys, type KeyIssueInput, type KeyIssueQuery } from '@shared/schemas/keyControl';
+import { CutList, KeyIssueAnswer, KeyIssueList, OutstandingKeys, type KeyIssueInput, type KeyIssueQuery, type KeyTransferInput } from '@shared/schemas/keyControl';
 import { toQuery } from './doors';
 import { request } from './http';
 
@@ -12,6 +12,8 @@ export const issueKey = async (input: KeyIssueInput) => (await request('POST', '
 /** The receipt: the issue with the drawn signature; never a bitting. */
 export const getIssue = async (id: string) => (await request('GET', `/api/key-issues/${id}`, { schema: KeyIssueAnswer })).issue;
 export const returnKey = async (id: string, note?: string) => (await request('POST', `/api/key-issues/${id}/return`, { body: note ? { note } : {}, schema: KeyIssueAnswer })).issue;
+/** The copy passes to another holder with its copy number; answers the new record. */
+export const transferKey = async (id: string, input: KeyTransferInput) => (await request('POST', `/api/key-issues/${id}/transfer`, { body: input, schema: KeyIssueAnswer })).issue;
 /** Copies out past their due date, or held by someone leaving or gone. */
 export const outstandingKeys = async () => (await request('GET', '/api/key-issues/outstanding', { schema: OutstandingKeys })).issues;
 /** Restricted: each call is an audited view of bittings. */

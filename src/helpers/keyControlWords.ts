@@ -3,7 +3,7 @@ import type { HolderStatus, IssueStatus } from '@shared/schemas/keyControl';
 import type { ExposureHow } from '@shared/schemas/keyControlExposure';
 
 export const HOLDER_STATUS_WORDS: Record<HolderStatus, string> = { active: 'Active', leaving: 'Leaving', left: 'Left' };
-export const ISSUE_STATUS_WORDS: Record<IssueStatus, string> = { out: 'Out', returned: 'Returned', lost: 'Lost', stolen: 'Stolen' };
+export const ISSUE_STATUS_WORDS: Record<IssueStatus, string> = { out: 'Out', returned: 'Returned', lost: 'Lost', stolen: 'Stolen', transferred: 'Passed on' };
 export const REQUEST_STATUS_WORDS = { pending: 'Waiting for a decision', approved: 'Approved', refused: 'Declined' } as const;
 export const CHASE_WORDS = { overdue: 'Past its due date', leaving: 'Holder leaving', left: 'Holder gone' } as const;
 

@@ -46,6 +46,7 @@ const consoleRoutes: RouteRecordRaw[] = [
   { path: 'key-issues', name: 'keyIssues.list', component: () => import('@/pages/KeyIssuesPage.vue'), meta: { roles: office, title: 'Keys issued' } },
   { path: 'key-issues/new', name: 'keyIssues.new', component: () => import('@/pages/KeyIssueNewPage.vue'), meta: { roles: office, title: 'Issue a key' } },
   { path: 'key-issues/cut-list', name: 'keyIssues.cutList', component: () => import('@/pages/PrintCutListPage.vue'), meta: { roles: office, title: 'Cut list' } },
+  { path: 'key-issues/:id/transfer', name: 'keyIssues.transfer', component: () => import('@/pages/KeyTransferPage.vue'), meta: { roles: office, title: 'Pass a key on' } },
   { path: 'key-issues/:id/receipt', name: 'keyIssues.receipt', component: () => import('@/pages/PrintReceiptPage.vue'), meta: { roles: office, title: 'Key receipt' } },
   { path: 'key-reports', name: 'keyReports.list', component: () => import('@/pages/KeyReportsPage.vue'), meta: { roles: office, title: 'Lost keys' } },
   { path: 'key-reports/:id', name: 'keyReports.detail', component: () => import('@/pages/KeyReportPage.vue'), meta: { roles: office, title: 'Lost key' } },

@@ -58,6 +58,7 @@ export const answers: Record<string, Answer> = {
   'GET /api/key-issues/cut-list': json(CutList),
   'GET /api/key-issues/:id': json(KeyIssueAnswer),
   'POST /api/key-issues/:id/return': json(KeyIssueAnswer),
+  'POST /api/key-issues/:id/transfer': json(KeyIssueAnswer),
   'POST /api/key-issues/:id/report': json(KeyReportAnswer),
   'GET /api/keys/:id/exposure': json(ExposureAnswer),
   'GET /api/key-systems/:id/control-exposure': json(ExposureAnswer),

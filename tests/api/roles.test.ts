@@ -108,6 +108,7 @@ const matrix: Entry[] = [
   { method: 'GET', route: '/api/key-issues/cut-list', path: '/api/key-issues/cut-list', allow: SUP, ok: 400 },
   { method: 'GET', route: '/api/key-issues/:id', path: `/api/key-issues/${randomUUID()}`, allow: SUP, ok: 404 },
   { method: 'POST', route: '/api/key-issues/:id/return', path: `/api/key-issues/${randomUUID()}/return`, allow: SUP, ok: 404, body: {} },
+  { method: 'POST', route: '/api/key-issues/:id/transfer', path: `/api/key-issues/${randomUUID()}/transfer`, allow: SUP, ok: 400, body: {} },
   { method: 'POST', route: '/api/key-issues/:id/report', path: `/api/key-issues/${randomUUID()}/report`, allow: SUP, ok: 400, body: {} },
   { method: 'GET', route: '/api/keys/:id/exposure', path: '/api/keys/{key}/exposure', allow: SUP, ok: 200 },
   { method: 'GET', route: '/api/key-systems/:id/control-exposure', path: '/api/key-systems/{ks}/control-exposure', allow: SUP, ok: 200 },

@@ -119,7 +119,7 @@ test('a lost change key: reported, its exposure read, the plan made a work order
   for (const [dx, dy] of [[80, -60], [160, 40], [240, -30], [320, 50]] as const) await page.mouse.move(canvas!.x + dx, canvas!.y + 120 + dy, { steps: 5 });
   await page.mouse.up();
   await expect(page.getByTestId('signature-field')).toContainText('Signed');
-  await page.getByTestId('reissue-accepted').click();
+  await page.getByTestId('ack-accepted').click();
   await shot(page, 'reissue-form');
   await page.getByTestId('reissue-confirm').click();
   await page.getByTestId('tasks-status').click();
