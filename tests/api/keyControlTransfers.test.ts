@@ -203,9 +203,9 @@ describe('after a transfer the copy counts under its new holder only', () => {
     expect(access.some((x) => x.holderId === from || x.issueId === out.id)).toBe(false);
     expect((await h.call('GET', `/api/holders/${from}/access`, { token: lead })).json.doors).toEqual([]);
     expect((await h.call('GET', `/api/holders/${to}/access`, { token: lead })).json.doors.map((d: { issueId: string }) => d.issueId)).toContain(fresh.id);
-    const campaign = await h.call('POST', '/api/key-audits', { token: lead, body: { title: 'After a transfer', keySystemId: systemId } });
-    expect(campaign.status, campaign.text).toBe(201);
-    const people = campaign.json.keyAudit.people as { holderId: string; copies: { issueId: string }[] }[];
+    const round = await h.call('POST', '/api/key-audits', { token: lead, body: { title: 'After a transfer', keySystemId: systemId } });
+    expect(round.status, round.text).toBe(201);
+    const people = round.json.keyAudit.people as { holderId: string; copies: { issueId: string }[] }[];
     expect(people.find((p) => p.holderId === to)?.copies.map((c) => c.issueId)).toEqual([fresh.id]);
     expect(people.find((p) => p.holderId === from)).toBeUndefined();
   });
