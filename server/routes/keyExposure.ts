@@ -5,12 +5,13 @@
 import { Router } from 'express';
 import { z } from 'zod';
 import { Id } from '../../shared/schemas/common';
-import { KeyReportInput } from '../../shared/schemas/keyControlExposure';
+import { KeyReportCloseInput, KeyReportInput } from '../../shared/schemas/keyControlExposure';
 import type { Ctx } from '../context';
 import { actorOf, allow } from '../middleware/auth';
 import { parse } from '../middleware/validate';
 import { audit } from '../services/auditTrail';
 import { controlExposureOf, doorAccess, holderAccess, keyExposureOf } from '../services/keyExposure';
+import { closeReportAccepting } from '../services/keyCloseout';
 import { getReport, listReports, reportKey } from '../services/keyReports';
 import { planToWorkOrder, rekeyPlan } from '../services/rekeyPlans';
 import { RekeyWorkOrderInput } from '../../shared/schemas/keyControlRekey';
@@ -62,6 +63,13 @@ export function keyExposureRouter({ db, sealer }: Ctx): Router {
       return made;
     });
     res.status(201).json({ ...done, plan: await rekeyPlan(db, sealer, id) });
+  });
+  /** Closes a rebuilt report whose old key still turns some cores: the supervisor accepts them, with a note. */
+  r.post('/key-reports/:id/close', office, async (req, res) => {
+    const id = parse(Id, req.params.id, 'The key report id');
+    const input = parse(KeyReportCloseInput, req.body, 'The close');
+    await db.transaction((trx) => closeReportAccepting(trx, sealer, id, input.note, actorOf(req)));
+    res.json({ report: await getReport(db, id) });
   });
   return r;
 }

@@ -21,11 +21,13 @@ function reportQuery(db: Knex) {
     .join('key_issues as i', 'i.id', 'r.issue_id')
     .join('key_holders as h', 'h.id', 'i.holder_id')
     .join('keys as k', 'k.id', 'i.key_id')
-    .select('r.id', 'r.issue_id as issueId', 'h.id as holderId', 'h.name as holderName', 'k.id as keyId', 'k.symbol as keySymbol', 'i.copy_number as copyNumber', 'r.kind', 'r.note', 'r.status', 'r.work_order_id as workOrderId', 'r.created_at as createdAt', 'r.closed_at as closedAt', 'r.exposure');
+    .leftJoin('users as u', 'u.id', 'r.closed_by')
+    .select('r.id', 'r.issue_id as issueId', 'h.id as holderId', 'h.name as holderName', 'k.id as keyId', 'k.symbol as keySymbol', 'i.copy_number as copyNumber', 'r.kind', 'r.note', 'r.status', 'r.work_order_id as workOrderId', 'r.created_at as createdAt', 'r.closed_at as closedAt', 'r.rebuilt_at as rebuiltAt', 'r.remaining', 'u.name as closedByName', 'r.close_note as closeNote', 'r.exposure');
 }
 
-type Row = Omit<KeyReport, 'createdAt' | 'closedAt'> & { createdAt: Date; closedAt: Date | null };
-const reportOf = (r: Row): KeyReport => ({ ...r, createdAt: new Date(r.createdAt).toISOString(), closedAt: r.closedAt ? new Date(r.closedAt).toISOString() : null });
+type Row = Omit<KeyReport, 'createdAt' | 'closedAt' | 'rebuiltAt'> & { createdAt: Date; closedAt: Date | null; rebuiltAt: Date | null };
+const iso = (d: Date | null) => (d ? new Date(d).toISOString() : null);
+const reportOf = (r: Row): KeyReport => ({ ...r, createdAt: new Date(r.createdAt).toISOString(), closedAt: iso(r.closedAt), rebuiltAt: iso(r.rebuiltAt) });
 
 export async function getReport(db: Knex, id: string): Promise<KeyReport> {
   const row = (await reportQuery(db).where('r.id', id).first()) as Row | undefined;

@@ -133,7 +133,7 @@ export async function landChecked(trx: Knex.Transaction, sealer: Sealer, input: 
   await landInstalls(trx, input, out);
   // A lost key's rekey finishes with its last install: the old keys retire and the report closes (keyCloseout.ts).
   const installed = input.installs.filter((i) => out.accepted.has(i.record.clientId)).map((i) => i.record.coreId);
-  await closeReportsAfterInstalls(trx, installed, { id: input.user.id, email: input.user.email ?? null });
+  await closeReportsAfterInstalls(trx, sealer, installed, { id: input.user.id, email: input.user.email ?? null });
   // Work orders whose every core is built are done.
   const wos = [...new Set(input.completions.map((i) => i.record.workOrderId))];
   if (wos.length) {

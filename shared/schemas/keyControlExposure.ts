@@ -36,6 +36,16 @@ export const KeyReportInput = z.strictObject({
 });
 export type KeyReportInput = z.infer<typeof KeyReportInput>;
 
+/** A core an old key still turned when the report was last checked after its rebuild: the key by symbol, no bitting. */
+export const RemainingCore = z.object({ coreId: Id, tag: z.string(), doorId: Id.nullable(), doorLabel: z.string().nullable(), keySymbol: z.string(), how: ExposureHow });
+export type RemainingCore = z.infer<typeof RemainingCore>;
+
+/** Closing a report by hand: the supervisor accepts the cores the old keys still turn, and says why. */
+export const KeyReportCloseInput = z.strictObject({
+  note: Notes(1000, 'the note').refine((s) => s.length >= 3, { error: 'the note says why the cores the old key still turns are accepted (3 characters or more)' }),
+});
+export type KeyReportCloseInput = z.infer<typeof KeyReportCloseInput>;
+
 export const KeyReport = z.object({
   id: Id,
   issueId: Id,
@@ -50,6 +60,13 @@ export const KeyReport = z.object({
   workOrderId: Id.nullable(),
   createdAt: z.string(),
   closedAt: z.string().nullable(),
+  /** When the rekey work order was all installed: the old keys retired, their holders' re-issue tasks made. */
+  rebuiltAt: z.string().nullable(),
+  /** The installed cores the old keys still turned at the last check after the rebuild (null: not checked yet). */
+  remaining: z.array(RemainingCore).nullable(),
+  /** Closed by hand, accepting `remaining`: who, and why. */
+  closedByName: z.string().nullable(),
+  closeNote: z.string().nullable(),
   exposure: Exposure,
 });
 export type KeyReport = z.infer<typeof KeyReport>;

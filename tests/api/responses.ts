@@ -67,6 +67,7 @@ export const answers: Record<string, Answer> = {
   'GET /api/key-reports/:id': json(KeyReportAnswer),
   'GET /api/key-reports/:id/plan': json(RekeyPlanAnswer),
   'POST /api/key-reports/:id/work-order': json(RekeyWorkOrderDone),
+  'POST /api/key-reports/:id/close': json(KeyReportAnswer),
   'POST /api/key-requests/proposal': json(KeyProposal),
   'POST /api/key-requests': json(KeyRequestAnswer),
   'GET /api/key-requests': json(KeyRequestList),

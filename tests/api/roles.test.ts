@@ -117,6 +117,7 @@ const matrix: Entry[] = [
   { method: 'GET', route: '/api/key-reports/:id', path: `/api/key-reports/${randomUUID()}`, allow: SUP, ok: 404 },
   { method: 'GET', route: '/api/key-reports/:id/plan', path: `/api/key-reports/${randomUUID()}/plan`, allow: SUP, ok: 404 },
   { method: 'POST', route: '/api/key-reports/:id/work-order', path: `/api/key-reports/${randomUUID()}/work-order`, allow: SUP, ok: 404, body: {} },
+  { method: 'POST', route: '/api/key-reports/:id/close', path: `/api/key-reports/${randomUUID()}/close`, allow: SUP, ok: 404, body: { note: 'Accepted by the office' } },
   { method: 'POST', route: '/api/key-requests/proposal', path: '/api/key-requests/proposal', allow: SUP, ok: 400, body: {} },
   { method: 'POST', route: '/api/key-requests', path: '/api/key-requests', allow: SUP, ok: 400, body: {} },
   { method: 'GET', route: '/api/key-requests', path: '/api/key-requests', allow: SUP, ok: 200 },

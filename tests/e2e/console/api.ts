@@ -25,6 +25,13 @@ export async function apiGet<T>(request: APIRequestContext, s: ApiSession, path:
   return (await res.json()) as T;
 }
 
+/** POSTs as the session's user and expects `status` (201 unless told). */
+export async function apiPost<T>(request: APIRequestContext, s: ApiSession, path: string, data: unknown, status = 201): Promise<T> {
+  const res = await request.post(path, { headers: bearer(s), data });
+  expect(res.status(), `${path}: ${await res.text()}`).toBe(status);
+  return (await res.json()) as T;
+}
+
 export interface Mail {
   id: number;
   to: string[];
