@@ -6,6 +6,7 @@ import { startFakeSmtp, type FakeSmtp } from './dev/fakeSmtp';
 import { createMailer } from './services/mail';
 import { sweepFailures } from './services/failureLimiter';
 import { sendPending } from './services/notifier';
+import { queueKeyAuditReminders } from './services/keyAudits';
 import { queueDueReminders } from './services/keyIssues';
 
 // A promise nobody awaited must never stop the server for every other user (T1): log it, keep serving.
@@ -27,8 +28,10 @@ const app = createApp({ db, config, smtp, mailer });
 // Mail owed by work that landed before a crash or restart, then every minute (CW_OWED_MAIL_INTERVAL_MS).
 // Every instance runs this: each row is sent under a row lock, so N instances never send it twice.
 const sendOwed = () => {
-  // Copies past their due date owe their holder a reminder (one per copy), sent like any owed mail.
+  // Copies past their due date owe their holder a reminder (one per copy), and a key audit's holders who have not
+  // answered one a day; sent like any owed mail.
   void queueDueReminders(db)
+    .then(() => queueKeyAuditReminders(db))
     .then(() => sendPending({ db, mailer, config }))
     .catch((err) => console.error('[server] sending notifications failed', (err as Error).message));
   void sweepFailures(db).catch(() => {}); // ended lockout windows; harmless when the database is away

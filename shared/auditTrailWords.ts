@@ -67,8 +67,12 @@ export const actionWords: Record<string, string> = {
   'key.reissued': 'Issued the new key for a retired one',
   'key-campaign.started': 'Started a key audit',
   'key-campaign.answered': 'A holder confirmed their keys',
+  'key-audit.reminded': "Reminded the key audit's holders who have not answered",
+  'key-audit.link-resent': "Sent a holder's key audit link again",
+  'key-audit.closed': 'Closed a key audit',
   'key-request.created': 'Asked for a key',
   'key-request.decided': 'Decided a key request',
+  'key-request.link-resent': "Sent a key request's approval e-mail again",
 };
 
 /** "door.retired" → its words; an action not listed yet still reads as words, not a code. */
@@ -90,7 +94,7 @@ export const actionGroups = [
   { label: 'Users and invitations', value: 'user.' },
   { label: 'Tablets and sync', value: 'device.,sync.' },
   { label: 'Access refused', value: 'access.denied' },
-  { label: 'Key control (holders, requests, issues, lost keys, audits)', value: 'department.,holder.,holders.,key-request.,key.issued,key.returned,key.transferred,key.reported,key.reissued,key-report.,key-campaign.' },
+  { label: 'Key control (holders, requests, issues, lost keys, audits)', value: 'department.,holder.,holders.,key-request.,key.issued,key.returned,key.transferred,key.reported,key.reissued,key-report.,key-campaign.,key-audit.' },
 ] as const;
 
 const whatWords: Record<string, string> = { control: 'the control key', keys: 'the key bittings', charts: 'the pinning charts', 'progression-preview': 'a progression preview' };

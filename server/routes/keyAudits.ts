@@ -10,8 +10,9 @@ import type { Ctx } from '../context';
 import { actorOf, allow } from '../middleware/auth';
 import { parse } from '../middleware/validate';
 import { audit } from '../services/auditTrail';
-import { confirmByLink, getKeyAudit, listKeyAudits, startKeyAudit, viewKeyAuditLink } from '../services/keyAudits';
+import { closeKeyAudit, confirmByLink, getKeyAudit, listKeyAudits, remindNow, resendLink, startKeyAudit, viewKeyAuditLink } from '../services/keyAudits';
 import { mails } from '../services/mail';
+import { sendPending } from '../services/notifier';
 
 const office = allow('supervisor', 'admin');
 
@@ -41,6 +42,37 @@ export function keyAuditsRouter({ db, mailer, config }: Ctx): Router {
   });
   r.get('/key-audits/:id', office, async (req, res) => {
     res.json({ keyAudit: await getKeyAudit(db, parse(Id, req.params.id, 'The key audit id')) });
+  });
+  /** Reminds every holder not answered, at once (each gets a new link; the mail goes through the owed-mail queue). */
+  r.post('/key-audits/:id/reminders', office, async (req, res) => {
+    const id = parse(Id, req.params.id, 'The key audit id');
+    await db.transaction(async (trx) => {
+      const done = await remindNow(trx, id, req.user!.id);
+      await audit(trx, actorOf(req), 'key-audit.reminded', { type: 'key-campaign', id }, { holders: done.holders });
+    });
+    // After the commit, now rather than at the next minute; each row is sent under its lock, so never twice.
+    await sendPending({ db, mailer, config });
+    res.json({ keyAudit: await getKeyAudit(db, id) });
+  });
+  /** Sends one holder their link again: a new single-use link; the old one answers that a newer e-mail replaced it. */
+  r.post('/key-audits/:id/holders/:holderId/resend', office, async (req, res) => {
+    const id = parse(Id, req.params.id, 'The key audit id');
+    const holderId = parse(Id, req.params.holderId, 'The key holder id');
+    const sent = await db.transaction(async (trx) => {
+      const done = await resendLink(trx, config, id, holderId);
+      await audit(trx, actorOf(req), 'key-audit.link-resent', { type: 'key-campaign', id }, { holder: done.name });
+      return done;
+    });
+    await mailer.send(sent.mail);
+    res.json({ keyAudit: await getKeyAudit(db, id) });
+  });
+  r.post('/key-audits/:id/close', office, async (req, res) => {
+    const id = parse(Id, req.params.id, 'The key audit id');
+    await db.transaction(async (trx) => {
+      const done = await closeKeyAudit(trx, id, req.user!.id);
+      await audit(trx, actorOf(req), 'key-audit.closed', { type: 'key-campaign', id }, { unanswered: done.unanswered });
+    });
+    res.json({ keyAudit: await getKeyAudit(db, id) });
   });
   r.get('/key-campaigns', movedToKeyAudits);
   r.post('/key-campaigns', movedToKeyAudits);

@@ -11,13 +11,22 @@ import { actorOf, allow } from '../middleware/auth';
 import { parse } from '../middleware/validate';
 import { audit } from '../services/auditTrail';
 import { mails } from '../services/mail';
-import { createRequest, decideByLink, decideInApp, getRequest, linkAnswer, listRequests, proposeKeys, viewByLink } from '../services/keyRequests';
+import { createRequest, decideByLink, decideInApp, getRequest, linkAnswer, listRequests, proposeKeys, resendLinks, viewByLink, type CreatedRequest } from '../services/keyRequests';
 
 const office = allow('supervisor', 'admin');
 const RequestQuery = z.strictObject({ status: z.enum(['pending', 'approved', 'refused'], { error: 'status is pending, approved or refused' }).optional() });
 
 export function keyRequestsRouter({ db, sealer, mailer, config }: Ctx): Router {
   const r = Router();
+  /** After the commit: each authoriser's link; the token rides in the link's fragment, so it never reaches a server log. */
+  async function mailLinks(made: CreatedRequest, again = false) {
+    const request = await getRequest(db, sealer, made.id);
+    const beyond = request.opens.filter((o) => !o.requested).map((o) => o.doorLabel);
+    for (const l of made.links) {
+      await mailer.send({ to: l.email, ...mails.keyRequest({ authoriser: l.name, number: request.number, holder: request.holderName, department: request.department, reason: request.reason, symbol: request.keySymbol, doors: request.doors.map((d) => d.label), beyond, link: `${config.publicUrl}/authorise#${l.token}`, again }) });
+    }
+    return request;
+  }
   /** Nothing saved: the proposal and every other key that would open all the doors. */
   r.post('/key-requests/proposal', office, async (req, res) => {
     const input = parse(KeyProposalInput, req.body, 'The doors');
@@ -31,13 +40,17 @@ export function keyRequestsRouter({ db, sealer, mailer, config }: Ctx): Router {
       await audit(trx, actorOf(req), 'key-request.created', { type: 'key-request', id: made.id }, { doors: input.doorIds.length, chosen: Boolean(input.keyId), authorisers: made.links.length });
       return made;
     });
-    const request = await getRequest(db, sealer, created.id);
-    // After the commit; the link carries the token in its fragment, so it never reaches a server log.
-    for (const l of created.links) {
-      const beyond = request.opens.filter((o) => !o.requested).map((o) => o.doorLabel);
-      await mailer.send({ to: l.email, ...mails.keyRequest({ authoriser: l.name, number: request.number, holder: request.holderName, department: request.department, reason: request.reason, symbol: request.keySymbol, doors: request.doors.map((d) => d.label), beyond, link: `${config.publicUrl}/authorise#${l.token}` }) });
-    }
-    res.status(201).json({ request });
+    res.status(201).json({ request: await mailLinks(created) });
+  });
+  /** The approval e-mail again: each authoriser gets a new link; the links not used yet stop working. */
+  r.post('/key-requests/:id/resend', office, async (req, res) => {
+    const id = parse(Id, req.params.id, 'The key request id');
+    const resent = await db.transaction(async (trx) => {
+      const made = await resendLinks(trx, id);
+      await audit(trx, actorOf(req), 'key-request.link-resent', { type: 'key-request', id }, { authorisers: made.links.length });
+      return made;
+    });
+    res.json({ request: await mailLinks(resent, true) });
   });
   r.get('/key-requests', office, async (req, res) => {
     res.json({ requests: await listRequests(db, sealer, parse(RequestQuery, req.query, 'The filter').status) });

@@ -64,14 +64,33 @@ export async function createRequest(db: Knex, sealer: Sealer, input: KeyRequestI
   const [row] = await db('key_requests')
     .insert({ number: nextval, holder_id: holder.id, key_system_id: best.keySystemId, door_ids: input.doorIds, reason: input.reason, proposed_key_id: best.proposal.keyId, key_id: chosen.proposal.keyId, created_by: by })
     .returning('id');
-  const authorisers = await db('department_authorisers').where({ department_id: holder.department_id }).select<{ id: string; name: string; email: string }[]>('id', 'name', 'email');
+  return { id: row.id as string, links: await newLinks(db, row.id as string, holder.department_id as string) };
+}
+
+/** A single-use, expiring link for each of the department's authorisers (only the token's SHA-256 stored). */
+async function newLinks(db: Knex, requestId: string, departmentId: string): Promise<CreatedRequest['links']> {
+  const authorisers = await db('department_authorisers').where({ department_id: departmentId }).select<{ id: string; name: string; email: string }[]>('id', 'name', 'email');
   const links: CreatedRequest['links'] = [];
   for (const a of authorisers) {
     const token = randomBytes(32).toString('base64url');
-    await db('key_request_links').insert({ request_id: row.id, authoriser_id: a.id, token_hash: sha256(token), expires_at: new Date(Date.now() + REQUEST_LINK_HOURS * 3600_000) });
+    await db('key_request_links').insert({ request_id: requestId, authoriser_id: a.id, token_hash: sha256(token), expires_at: new Date(Date.now() + REQUEST_LINK_HOURS * 3600_000) });
     links.push({ name: a.name, email: a.email, token });
   }
-  return { id: row.id as string, links };
+  return links;
+}
+
+/**
+ * Sends the approval e-mail again (the first failed or was lost): every link of the request not yet used is
+ * replaced (it then answers that a newer e-mail replaced it) and each authoriser of the department gets a new one.
+ */
+export async function resendLinks(db: Knex, id: string): Promise<CreatedRequest & { number: number }> {
+  const r = await db('key_requests as r').join('key_holders as h', 'h.id', 'r.holder_id').where('r.id', id).forUpdate('r').first<{ status: string; number: number; department_id: string } | undefined>('r.status', 'r.number', 'h.department_id');
+  if (!r) throw notFound('That key request');
+  if (r.status !== 'pending') throw conflict(`Request #${r.number} was ${r.status} already: there is no approval to ask for.`, [{ field: 'status', message: `already ${r.status}` }]);
+  await db('key_request_links').where({ request_id: id }).whereNull('used_at').whereNull('replaced_at').update({ replaced_at: db.fn.now() });
+  const links = await newLinks(db, id, r.department_id);
+  if (!links.length) throw conflict(`The holder's department has no one who may authorise keys: add an authoriser to it, or decide request #${r.number} in the app.`);
+  return { id, number: r.number, links };
 }
 
 export async function getRequest(db: Knex, sealer: Sealer, id: string): Promise<KeyRequest> {
@@ -89,8 +108,16 @@ export async function getRequest(db: Knex, sealer: Sealer, id: string): Promise<
   const wanted = new Set(doorIds);
   const key = system.keys.find((k) => k.id === r.keyId)!;
   const opens = exposedCores(system, await installedCores(db, system.id), key).flatMap((c) => (c.doorId && c.doorLabel ? [{ doorId: c.doorId, doorLabel: c.doorLabel, how: c.how, requested: wanted.has(c.doorId) }] : []));
+  const links = await db('key_request_links as l')
+    .join('department_authorisers as a', 'a.id', 'l.authoriser_id')
+    .where('l.request_id', id)
+    .whereNull('l.used_at')
+    .whereNull('l.replaced_at')
+    .where('l.expires_at', '>', db.fn.now())
+    .orderBy('a.name')
+    .select<{ authoriser: string; sentAt: Date; expiresAt: Date }[]>('a.name as authoriser', 'l.sent_at as sentAt', 'l.expires_at as expiresAt');
   const { door_ids: _d, decided_at, created_at, ...rest } = r;
-  return { ...rest, doors: doorIds.map((d) => ({ id: d, label: doors.find((x) => x.id === d)?.label ?? '(removed)' })), opens, decidedAt: decided_at ? new Date(decided_at).toISOString() : null, createdAt: new Date(created_at).toISOString() };
+  return { ...rest, links: links.map((l) => ({ authoriser: l.authoriser, sentAt: new Date(l.sentAt).toISOString(), expiresAt: new Date(l.expiresAt).toISOString() })), doors: doorIds.map((d) => ({ id: d, label: doors.find((x) => x.id === d)?.label ?? '(removed)' })), opens, decidedAt: decided_at ? new Date(decided_at).toISOString() : null, createdAt: new Date(created_at).toISOString() };
 }
 
 export async function listRequests(db: Knex, sealer: Sealer, status?: KeyRequest['status']): Promise<KeyRequest[]> {
@@ -115,12 +142,13 @@ export async function decideInApp(db: Knex, id: string, input: KeyDecisionInput,
 
 const deadLink = () => new HttpError('unprocessable', 'This link has expired, was used already or is not valid; ask the key office to send the request again.');
 
-/** The link's authoriser and request; a used, expired or unknown link is refused alike. */
+/** The link's authoriser and request; a used, expired or unknown link is refused alike, a replaced one says so. */
 async function openLink(db: Knex, token: string, lock: boolean) {
-  const q = db('key_request_links as l').join('department_authorisers as a', 'a.id', 'l.authoriser_id').where('l.token_hash', sha256(token));
-  if (lock) q.forUpdate();
-  const link = await q.first('l.id', 'l.request_id', 'l.expires_at', 'l.used_at', 'a.name', 'a.email');
+  const q = db('key_request_links as l').join('department_authorisers as a', 'a.id', 'l.authoriser_id').join('key_requests as r', 'r.id', 'l.request_id').where('l.token_hash', sha256(token));
+  if (lock) q.forUpdate('l');
+  const link = await q.first('l.id', 'l.request_id', 'l.expires_at', 'l.used_at', 'l.replaced_at', 'r.number', 'a.name', 'a.email');
   if (!link || link.used_at || new Date(link.expires_at) <= new Date()) throw deadLink();
+  if (link.replaced_at) throw new HttpError('unprocessable', `This link was replaced by a newer one: open the link in the newest e-mail about key request #${link.number}.`);
   return link as { id: string; request_id: string; name: string; email: string };
 }
 

@@ -74,16 +74,18 @@ export const mails = {
       text: `Hello ${o.holder},\n\nKey ${o.symbol}, copy ${o.copy}, issued to you, was due back on ${o.due}. Please return it to the key office, or tell them if you still need it.\n`,
     };
   },
-  keyAudit(o: { holder: string; number: number; title: string; copies: { keySymbol: string; copyNumber: number }[]; expires: string; link: string }): Omit<Mail, 'to'> {
+  /** The key audit's link: first sent, a reminder, or sent again; a later one replaces the link before it. */
+  keyAudit(o: { holder: string; number: number; title: string; copies: { keySymbol: string; copyNumber: number }[]; expires: string; link: string; reminder?: boolean; again?: boolean }): Omit<Mail, 'to'> {
+    const later = o.reminder || o.again;
     return {
-      subject: `Key audit #${o.number}: please confirm the keys you hold`,
-      text: `Hello ${o.holder},\n\nThe key office is checking who holds which key (${o.title}). Our records show these keys issued to you:\n${o.copies.map((c) => `- key ${c.keySymbol}, copy ${c.copyNumber}`).join('\n')}\n\nPlease say which you still hold, and flag any you cannot find, here (the link works once, until ${o.expires}; no sign-in needed):\n${o.link}\n`,
+      subject: `${o.reminder ? 'Reminder: ' : ''}Key audit #${o.number}: please confirm the keys you hold`,
+      text: `Hello ${o.holder},\n\n${o.reminder ? 'We have not had your answer yet. ' : ''}The key office is checking who holds which key (${o.title}). Our records show these keys issued to you:\n${o.copies.map((c) => `- key ${c.keySymbol}, copy ${c.copyNumber}`).join('\n')}\n\nPlease say which you still hold, and flag any you cannot find, here (the link works once, until ${o.expires}; no sign-in needed):\n${o.link}\n${later ? '\nThis link replaces the one in any earlier key audit e-mail, which no longer works.\n' : ''}`,
     };
   },
-  keyRequest(o: { authoriser: string; number: number; holder: string; department: string; reason: string; symbol: string; doors: string[]; beyond: string[]; link: string }): Omit<Mail, 'to'> {
+  keyRequest(o: { authoriser: string; number: number; holder: string; department: string; reason: string; symbol: string; doors: string[]; beyond: string[]; link: string; again?: boolean }): Omit<Mail, 'to'> {
     return {
       subject: `Key request #${o.number}: ${o.holder} (${o.department})`,
-      text: `Hello ${o.authoriser},\n\n${o.holder} of ${o.department} asks for a key for: ${o.doors.join(', ')}.\nWhy: ${o.reason}\n\nProposed key: ${o.symbol}.${o.beyond.length ? ` It also opens: ${o.beyond.join(', ')}.` : ' It opens no other door.'}\n\nApprove or refuse here (the link works once, for 72 hours; no sign-in needed):\n${o.link}\n`,
+      text: `Hello ${o.authoriser},\n\n${o.holder} of ${o.department} asks for a key for: ${o.doors.join(', ')}.\nWhy: ${o.reason}\n\nProposed key: ${o.symbol}.${o.beyond.length ? ` It also opens: ${o.beyond.join(', ')}.` : ' It opens no other door.'}\n\nApprove or refuse here (the link works once, for 72 hours; no sign-in needed):\n${o.link}\n${o.again ? '\nThis link replaces the one in the earlier e-mail about this request, which no longer works.\n' : ''}`,
     };
   },
 };

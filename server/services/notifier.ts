@@ -1,14 +1,16 @@
 /**
- * Sends the mail that synced work owes (rows of `notifications`, written with the work).
+ * Sends the mail that is owed (rows of `notifications`, written with the work that owes it: synced
+ * work, a key due back, a key audit's reminder).
  * Each row is locked while it is sent, so two server processes never send it both. A crash
  * between sending and marking may repeat a mail, never lose one.
  */
 import type { Knex } from 'knex';
 import type { Config } from '../config';
+import { sendReminder } from './keyAudits';
 import { mails, type KeyCheckOutcome, type Mailer } from './mail';
 import { getWorkOrder } from './workOrders';
 
-export type NotificationKind = 'key-check-failed' | 'work-order-done' | 'key-due';
+export type NotificationKind = 'key-check-failed' | 'work-order-done' | 'key-due' | 'key-audit-reminder';
 
 interface Deps {
   db: Knex;
@@ -29,6 +31,11 @@ async function deliver({ db, mailer, config }: Deps, kind: NotificationKind, ref
     // Only symbol and copy number: a reminder never carries a bitting.
     const i = await db('key_issues as i').join('key_holders as h', 'h.id', 'i.holder_id').join('keys as k', 'k.id', 'i.key_id').where('i.id', refId).first('i.status', 'i.copy_number', db.raw(`to_char(i.due_date, 'YYYY-MM-DD') as due`), 'h.name', 'h.email', 'k.symbol');
     if (i?.status === 'out' && i.email) await mailer.send({ to: i.email, ...mails.keyDue({ holder: i.name, symbol: i.symbol, copy: i.copy_number, due: i.due }) });
+    return;
+  }
+  if (kind === 'key-audit-reminder') {
+    // A new link for the holder, with their copies by symbol and copy number only.
+    await sendReminder(db, config, mailer, refId);
     return;
   }
   if (kind === 'work-order-done') {

@@ -28,6 +28,8 @@ export const KeyAuditSummary = z.object({
   scope: z.object({ kind: z.enum(['key-system', 'department']), name: z.string() }),
   createdAt: z.string(),
   expiresAt: z.string(),
+  /** Closed by the office: the links no longer work and no reminder goes out. */
+  closedAt: z.string().nullable(),
   holders: z.number(),
   confirmed: z.number(),
   missing: z.number(),
@@ -37,7 +39,19 @@ export const KeyAuditSummary = z.object({
 export type KeyAuditSummary = z.infer<typeof KeyAuditSummary>;
 
 export const KeyAudit = KeyAuditSummary.extend({
-  people: z.array(z.object({ holderId: Id, name: z.string(), department: z.string(), email: z.string().nullable(), answeredAt: z.string().nullable(), copies: z.array(KeyAuditCopy) })),
+  people: z.array(
+    z.object({
+      holderId: Id,
+      name: z.string(),
+      department: z.string(),
+      email: z.string().nullable(),
+      answeredAt: z.string().nullable(),
+      /** When the holder was last sent a link (the first mail, a reminder or the link sent again), and how many reminders went. */
+      mailedAt: z.string().nullable(),
+      reminders: z.number(),
+      copies: z.array(KeyAuditCopy),
+    }),
+  ),
 });
 export type KeyAudit = z.infer<typeof KeyAudit>;
 export const KeyAuditAnswer = z.object({ keyAudit: KeyAudit });

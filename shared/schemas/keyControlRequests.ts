@@ -58,6 +58,8 @@ export const KeyRequest = z.object({
   decidedAt: z.string().nullable(),
   decisionNote: z.string().nullable(),
   createdAt: z.string(),
+  /** The authorisers' links that still work (not used, not replaced): to whom and when the approval e-mail went. */
+  links: z.array(z.object({ authoriser: z.string(), sentAt: z.string(), expiresAt: z.string() })),
 });
 export type KeyRequest = z.infer<typeof KeyRequest>;
 export const KeyRequestAnswer = z.object({ request: KeyRequest });

@@ -1,8 +1,8 @@
 // Two API processes on one database, as behind a load balancer (issue: stateless API).
 // Everything that matters is shared through PostgreSQL: the sign-in lockout
 // (sign_in_failures), sessions (sign-out), sync idempotency (the client id's primary key)
-// and owed mail (notifications sent under a row lock). Common practice for horizontally
-// scaled services (The Twelve-Factor App, VI: processes are stateless and share nothing).
+// and owed mail (notifications sent under a row lock; a key audit's reminder queued once a
+// day). Common practice for horizontally scaled services (The Twelve-Factor App, VI: processes are stateless and share nothing).
 import { randomUUID } from 'node:crypto';
 import { afterAll, beforeAll, describe, expect, test } from 'vitest';
 import { startFakeSmtp, type FakeSmtp } from '../../server/dev/fakeSmtp';
@@ -95,5 +95,27 @@ describe('two API processes on one database', () => {
     const recipients = new Set(mails.map((m) => m.to.join(','))).size;
     expect(recipients).toBeGreaterThan(0);
     expect(perTag, mails.map((m) => m.subject).join('\n')).toEqual(tags.map(() => recipients));
+  });
+
+  test('a key audit\'s daily reminder goes out once to each holder not answered, although both processes queue and send every 200 ms', async () => {
+    const signedIn = await call(b, 'POST', '/api/auth/sign-in', { body: { email: emailFor.supervisor, password: 'corewright-demo' } });
+    const token = signedIn.json!.accessToken as string;
+    const library = (await h.db('departments').where({ name: 'Library Services' }).first('id')).id as string;
+    const started = await call(a, 'POST', '/api/key-audits', { token, body: { title: 'Two processes', departmentId: library } });
+    expect(started.status).toBe(201);
+    const audit = started.json!.keyAudit as { id: string; number: number; people: { email: string }[] };
+    const asked = audit.people.map((p) => p.email);
+    expect(asked.length).toBeGreaterThan(1);
+    // As if the first mail went yesterday: both processes now race to queue and send the reminders.
+    const dayOld = () => h.db('key_campaign_holders').where({ campaign_id: audit.id }).update({ mailed_at: h.db.raw(`now() - interval '25 hours'`) });
+    await dayOld();
+    const deadline = Date.now() + 15_000;
+    const handled = async () => Number((await h.db('key_audit_reminders as r').join('key_campaign_holders as ch', 'ch.id', 'r.campaign_holder_id').where('ch.campaign_id', audit.id).whereNotNull('r.done_at').count({ n: '*' }).first())!.n);
+    while (Date.now() < deadline && (await handled()) < asked.length) await new Promise((r) => setTimeout(r, 100));
+    // Pushed back again the same day: the day's reminder is already on record, so neither process sends another.
+    await dayOld();
+    await new Promise((r) => setTimeout(r, 1_000));
+    const reminders = smtp.messages.filter((m) => m.subject === `Reminder: Key audit #${audit.number}: please confirm the keys you hold`);
+    expect(asked.map((e) => reminders.filter((m) => m.to.includes(e)).length), reminders.map((m) => m.to.join(',')).join('\n')).toEqual(asked.map(() => 1));
   });
 });
