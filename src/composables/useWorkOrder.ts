@@ -1,26 +1,18 @@
-/**
- * The work order a page's route names (`:id`) with its cores, loaded when the id changes while
- * that page is the one shown (leaving for another page with an :id must not load that id here).
- */
-import { computed, ref, watch } from 'vue';
-import { useRoute, type RouteRecordName } from 'vue-router';
-import type { WorkOrder } from '@shared/schemas/records';
-import { getWorkOrder, type WorkOrderCore } from '@/api/workOrders';
-import { useRequest } from './useRequest';
+/** The work order a page's route names (`:id`) with its cores (useRouteRecord). */
+import { computed } from 'vue';
+import type { RouteRecordName } from 'vue-router';
+import { getWorkOrder } from '@/api/workOrders';
+import { useRouteRecord } from './useRouteRecord';
 
 export function useWorkOrder(page: RouteRecordName) {
-  const route = useRoute();
-  const id = computed(() => String(route.params.id));
-  const wo = ref<WorkOrder | null>(null);
-  const cores = ref<WorkOrderCore[]>([]);
-  const { busy, error, run, retry } = useRequest({ latestOnly: true });
-
-  async function load(): Promise<void> {
-    const res = await run(() => getWorkOrder(id.value));
-    if (!res) return;
-    wo.value = res.workOrder;
-    cores.value = res.cores;
-  }
-  watch(id, () => (route.name === page ? load() : undefined), { immediate: true });
-  return { id, wo, cores, busy, error, retry, load };
+  const { record, ...rest } = useRouteRecord(page, getWorkOrder);
+  // Writable: a page that saved the work order shows the server's answer without loading again.
+  const wo = computed({
+    get: () => record.value?.workOrder ?? null,
+    set: (w) => {
+      if (record.value && w) record.value = { ...record.value, workOrder: w };
+    },
+  });
+  const cores = computed(() => record.value?.cores ?? []);
+  return { wo, cores, ...rest };
 }
