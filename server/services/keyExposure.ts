@@ -8,6 +8,7 @@ import { keyExposure, type ExposureInput } from '../../shared/keying';
 import type { DoorAccess, ExposedCore, ExposedHolder, Exposure, HolderAccess } from '../../shared/schemas/keyControlExposure';
 import { naturalCompare } from '../../shared/words';
 import { notFound } from '../errors';
+import { joinHolder } from './keyHolders';
 import { loadSystem, type LoadedSystem } from './keySystems';
 import type { Sealer } from './secrets';
 
@@ -48,9 +49,7 @@ export function exposedCores(system: LoadedSystem, cores: InstalledCore[], key: 
 }
 
 export async function holdersOfKey(db: Knex, keyId: string): Promise<ExposedHolder[]> {
-  return db('key_issues as i')
-    .join('key_holders as h', 'h.id', 'i.holder_id')
-    .join('departments as d', 'd.id', 'h.department_id')
+  return joinHolder(db('key_issues as i'), 'i.holder_id')
     .where('i.key_id', keyId)
     .whereIn('i.status', ['out', 'lost', 'stolen'])
     .orderBy('i.copy_number')
@@ -94,9 +93,7 @@ export async function doorAccess(db: Knex, sealer: Sealer, doorId: string): Prom
   if (!core) return { coreId: null, coreTag: null, holders: [] };
   const system = await loadSystem(db, sealer, core.key_system_id);
   const [installed] = await installedCores(db, system.id, doorId);
-  const issues = await db('key_issues as i')
-    .join('key_holders as h', 'h.id', 'i.holder_id')
-    .join('departments as d', 'd.id', 'h.department_id')
+  const issues = await joinHolder(db('key_issues as i'), 'i.holder_id')
     .join('keys as k', 'k.id', 'i.key_id')
     .where({ 'k.key_system_id': system.id, 'i.status': 'out' })
     .select<Omit<DoorAccess['holders'][number], 'how'>[]>('i.id as issueId', 'h.id as holderId', 'h.name', 'd.name as department', 'k.id as keyId', 'k.symbol as keySymbol', 'i.copy_number as copyNumber');

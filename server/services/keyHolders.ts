@@ -5,6 +5,11 @@ import { naturalCompare } from '../../shared/words';
 import { badRequest, conflict, notFound } from '../errors';
 import { likeText } from './likeText';
 
+/** A query over rows that name a key holder (`column`), joined to the holder as `h` and their department as `d`. */
+export function joinHolder<Q extends Knex.QueryBuilder>(q: Q, column: string): Q {
+  return q.join('key_holders as h', 'h.id', column).join('departments as d', 'd.id', 'h.department_id') as Q;
+}
+
 const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
 
 export async function listDepartments(db: Knex, id?: string): Promise<Department[]> {

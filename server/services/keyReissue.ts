@@ -6,12 +6,11 @@
 import type { Knex } from 'knex';
 import type { ReissueInput, ReissueTask } from '../../shared/schemas/keyControlReissue';
 import { conflict, notFound } from '../errors';
+import { joinHolder } from './keyHolders';
 import { issueKey } from './keyIssues';
 
 function taskQuery(db: Knex) {
-  return db('key_reissue_tasks as t')
-    .join('key_holders as h', 'h.id', 't.holder_id')
-    .join('departments as d', 'd.id', 'h.department_id')
+  return joinHolder(db('key_reissue_tasks as t'), 't.holder_id')
     .join('key_issues as o', 'o.id', 't.old_issue_id')
     .join('keys as ok', 'ok.id', 'o.key_id')
     .join('keys as nk', 'nk.id', 't.new_key_id')

@@ -10,6 +10,7 @@ import type { KeyCandidate, KeyDecisionInput, KeyProposal, KeyRequest, KeyReques
 import { naturalCompare } from '../../shared/words';
 import { badRequest, conflict, HttpError, notFound } from '../errors';
 import { exposedCores, installedCores } from './keyExposure';
+import { joinHolder } from './keyHolders';
 import { loadSystem } from './keySystems';
 import type { Sealer } from './secrets';
 import { sha256 } from './tokens';
@@ -94,9 +95,7 @@ export async function resendLinks(db: Knex, id: string): Promise<CreatedRequest 
 }
 
 export async function getRequest(db: Knex, sealer: Sealer, id: string): Promise<KeyRequest> {
-  const r = await db('key_requests as r')
-    .join('key_holders as h', 'h.id', 'r.holder_id')
-    .join('departments as d', 'd.id', 'h.department_id')
+  const r = await joinHolder(db('key_requests as r'), 'r.holder_id')
     .join('keys as k', 'k.id', 'r.key_id')
     .leftJoin('keys as p', 'p.id', 'r.proposed_key_id')
     .where('r.id', id)
