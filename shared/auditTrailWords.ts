@@ -1,5 +1,5 @@
 /**
- * The audit log in people's words: each action's name, and a line for its details. Used by the
+ * The audit trail in people's words: each action's name, and a line for its details. Used by the
  * server for the list and the CSV export, and by the screen's action filter. Never raw JSON.
  */
 import { KEY_LEVEL_LABELS } from './keyLevels';
@@ -19,7 +19,7 @@ export const actionWords: Record<string, string> = {
   'bittings.viewed': 'Saw bittings',
   'packet.downloaded': 'Downloaded a work order packet',
   'completions.exported': 'Exported the completion log',
-  'audit.exported': 'Exported the audit log',
+  'audit.exported': 'Exported the audit trail',
   'key-system.created': 'Created a key system',
   'key-system.updated': 'Changed a key system',
   'key-system.control-changed': 'Changed the control key',
@@ -83,7 +83,7 @@ export function actionName(action: string): string {
 /** The filter's choices; each value is the action prefixes it covers, comma-separated, as the API takes them. */
 export const actionGroups = [
   { label: 'Bittings seen', value: 'bittings.' },
-  { label: 'Exports (completion log, audit log)', value: 'completions.exported,audit.exported' },
+  { label: 'Exports (completion log, audit trail)', value: 'completions.exported,audit.exported' },
   { label: 'Packets downloaded', value: 'packet.' },
   { label: 'Keys added, imported or changed', value: 'keys.,key.' },
   { label: 'Key systems', value: 'key-system.' },

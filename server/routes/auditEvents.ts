@@ -19,7 +19,7 @@ export function auditEventsRouter({ db }: Ctx): Router {
     const { page: _p, pageSize: _s, ...q } = parse(AuditQuery, req.query, 'The filter');
     await audit(db, actorOf(req), 'audit.exported', null, { filter: { action: q.action, person: q.actorId, from: q.from, to: q.to } });
     res.set('Content-Type', 'text/csv; charset=utf-8');
-    res.set('Content-Disposition', `attachment; filename="audit-log-${new Date().toISOString().slice(0, 10)}.csv"`);
+    res.set('Content-Disposition', `attachment; filename="audit-trail-${new Date().toISOString().slice(0, 10)}.csv"`);
     const columns = ['at', 'actorName', 'actionName', 'target', 'summary', 'ip', 'action', 'id'];
     // RFC 4180: CRLF between records.
     const csv = stringify({ header: true, columns, record_delimiter: 'windows' });

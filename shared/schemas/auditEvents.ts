@@ -1,4 +1,4 @@
-/** The audit log as the API answers it: names and words, never raw ids or JSON. */
+/** The audit trail as the API answers it: names and words, never raw ids or JSON. */
 import { z } from 'zod';
 import { cleanText, Id, IsoDate, Text, TzOffset } from './common';
 

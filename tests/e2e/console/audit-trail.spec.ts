@@ -83,7 +83,7 @@ test('an administrator filters the audit trail in the URL, pages it, steps back 
   const download = page.waitForEvent('download');
   await page.getByTestId('audit-export').click();
   const file = await download;
-  expect(file.suggestedFilename()).toMatch(/^audit-log-\d{4}-\d{2}-\d{2}\.csv$/);
+  expect(file.suggestedFilename()).toMatch(/^audit-trail-\d{4}-\d{2}-\d{2}\.csv$/);
   const lines = (await readFile(await file.path(), 'utf8')).trim().split(/\r?\n/);
   expect(lines).toHaveLength(total + 1);
   for (const line of lines.slice(1)) expect(line).toMatch(/Sam Lead \(demo\).*Signed in/);

@@ -1,5 +1,5 @@
 // The office's records, walked at 1440×900: a key's panel (the doors it operates, intended or
-// incidental), the audit log in names and words with its filters in the URL and an export, the
+// incidental), the audit trail in names and words with its filters in the URL and an export, the
 // completion detail with the key checks first and the steps folded, the "had a failed key check"
 // filter. Screenshots: test-results/screenshots/office-*.png.
 import { expect, test, type Page } from '@playwright/test';
@@ -19,7 +19,7 @@ const shot = async (page: Page, name: string) => {
 };
 const uuid = /[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}/i;
 
-test('an administrator opens a key, reads the audit log by person and action, and exports it', async ({ page }) => {
+test('an administrator opens a key, reads the audit trail by person and action, and exports it', async ({ page }) => {
   test.setTimeout(120_000);
   const admin = await apiSignIn(page.request, demo.admin);
   const { keySystems } = await apiGet<{ keySystems: KeySystem[] }>(page.request, admin, '/api/key-systems');
@@ -47,15 +47,15 @@ test('an administrator opens a key, reads the audit log by person and action, an
   await expect(page.getByTestId('audit-table')).toContainText('Saw bittings');
   await expect(page.getByTestId('audit-table')).toContainText('Key system Quillon Hill College');
   expect(await page.getByTestId('audit-table').innerText()).not.toMatch(uuid);
-  await shot(page, 'audit-log');
+  await shot(page, 'audit-trail');
   // The filter survives a reload: it lives in the URL.
   await page.reload();
   await expect(page.getByTestId('audit-action')).toHaveValue('Bittings seen');
   const download = page.waitForEvent('download');
   await page.getByTestId('audit-export').click();
-  expect((await download).suggestedFilename()).toMatch(/^audit-log-.*\.csv$/);
+  expect((await download).suggestedFilename()).toMatch(/^audit-trail-.*\.csv$/);
   await page.goto('/audit-trail?action=audit.exported');
-  await expect(page.getByTestId('audit-table')).toContainText('Exported the audit log');
+  await expect(page.getByTestId('audit-table')).toContainText('Exported the audit trail');
 });
 
 test('a supervisor reads a completion: result and key checks first, the steps folded; the failed-check filter is in the URL', async ({ page }) => {

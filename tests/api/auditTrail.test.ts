@@ -1,4 +1,4 @@
-// The audit log as people read it: names for people and records, words for actions and details,
+// The audit trail as people read it: names for people and records, words for actions and details,
 // filters by person, action and day, and an audited CSV export. Cases A-3 and A7 of
 // ../shared/design/reliability.md; CSV per RFC 4180.
 import { afterAll, beforeAll, describe, expect, test } from 'vitest';
