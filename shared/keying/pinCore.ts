@@ -133,7 +133,7 @@ function readInto(profile: Profile, text: string, rows: Int32Array, at: number):
     const t = text.trim();
     if (t.length !== to) return readInto(profile, t, rows, at);
   }
-  return readDigits(profile, text, 0, to, rows, at);
+  return readDigits(profile, text, rows, at);
 }
 
 /** readBitting's own words for a bitting readInto refused (the two accept the same texts). */
@@ -142,10 +142,10 @@ function failedReading(profile: Profile, text: string): { code: PinningIssue['co
   return reading.ok ? { code: 'bitting-not-digit', message: 'The bitting could not be read.' } : reading;
 }
 
-function readDigits(profile: Profile, text: string, from: number, to: number, rows: Int32Array, at: number): boolean {
-  if (to - from !== profile.chambers) return false;
+function readDigits(profile: Profile, text: string, rows: Int32Array, at: number): boolean {
+  if (text.length !== profile.chambers) return false;
   for (let i = 0; i < profile.chambers; i++) {
-    const d = text.charCodeAt(from + i) - 48;
+    const d = text.charCodeAt(i) - 48;
     if (d < 0 || d > 9 || d < profile.minDepth || d > profile.maxDepth) return false;
     rows[at + i] = d;
   }
