@@ -57,6 +57,8 @@ describe('access findings counted by hand', () => {
     expect(of('intended-key-fails', 'G').map((f) => f.message)).toEqual(['Key G is meant to operate Room 104 but does not turn it: the core is not pinned for this key.']);
     expect(of('intended-key-fails', 'F').map((f) => f.message)).toEqual(['Key F is meant to operate Room 102 and Room 103 but does not turn them: the core is not pinned for this key.']);
     expect(of('intended-key-fails', 'F')[0]).toMatchObject({ cores: ['C2', 'C3'], data: { cores: 2 } });
+    // G's pair comes after F's two in the list of failures: its count is its own.
+    expect(of('intended-key-fails', 'G')[0]).toMatchObject({ cores: ['C4'], data: { cores: 1 } });
   });
 });
 

@@ -1,4 +1,5 @@
 import { describe, expect, test } from 'vitest';
+import { pinCore } from '../pinCore';
 import { builtInProfiles } from '../profiles';
 import type { Profile } from '../types';
 import { auditSystem } from './auditSystem';
@@ -93,5 +94,14 @@ describe('cores that cannot be built, and the openings threshold', () => {
       expect(u.chambers!.length).toBeGreaterThan(0);
       expect(u.message).toMatch(/\(\d+ problems?\): /);
     }
+  });
+
+  test('a core with many problems: the count of all, the words of the first three only (common practice: a summary stays short)', () => {
+    const thin: Profile = { ...sfic6, wafers: [7] };
+    // Room 1 as pinCore charts it on its own: its errors, in pinCore's order.
+    const errors = pinCore(thin, { operating: ['424444', '444444'], control: '135791' }).issues.filter((i) => i.severity === 'error');
+    expect(errors.length).toBeGreaterThan(3);
+    const [room1] = of(auditSystem(thin, clean), 'core-unbuildable');
+    expect(room1?.message).toBe(`Core Room 1 cannot be pinned as planned (${errors.length} problems): ${errors.slice(0, 3).map((e) => e.message).join(' ')}`);
   });
 });

@@ -9,7 +9,7 @@ import { coreIds, coreName, finding, keyRefs, nameList, plural, type Ranked } fr
  */
 export const defaultOpeningsThreshold = 1024;
 
-/* pinCore errors that make a core unbuildable; control problems are reported system-wide. */
+/* pinCore errors that make a core unbuildable (every one of them an error in codes.ts); control problems are reported system-wide. */
 const buildCodes = new Set<KeyingIssueCode>([
   'no-operating-keys', 'wafer-too-thin', 'size-not-stocked', 'stack-mismatch', 'operating-releases-core',
 ]);
@@ -33,7 +33,7 @@ export function coreFindings(ctx: SystemAuditContext): Ranked[] {
 
   const plugCores: number[] = [];
   ctx.pinnings.forEach((pinning, c) => {
-    const problems = pinning.issues.filter((i) => i.severity === 'error' && buildCodes.has(i.code));
+    const problems = pinning.issues.filter((i) => buildCodes.has(i.code));
     if (pinning.issues.some((i) => i.code === 'control-turns-plug')) plugCores.push(c);
     if (problems.length > 0) {
       const first = problems.slice(0, 3).map((p) => p.message).join(' ');
