@@ -50,6 +50,7 @@ test('a rebuilt core put in another door: the report stays open naming the old c
   await page.setViewportSize({ width: 1440, height: 900 });
   await signIn(page, demo.supervisor);
   await page.getByRole('link', { name: 'Lost keys', exact: true }).click();
+  await expect(page.getByTestId('report-row-AB1 #1')).toContainText('Open: still turns 1 core');
   await page.getByTestId('report-open-AB1 #1').click();
   await expect(page.getByTestId('report-open')).toContainText('the rekey is installed, but key AB1 still turns 1 installed core');
   await expect(page.getByTestId('report-open')).toContainText('AB1 is retired and its holders have re-issue tasks');
@@ -78,6 +79,10 @@ test('a rebuilt core put in another door: the report stays open naming the old c
   await expect(page.getByTestId(`remaining-${stillIn.currentCoreTag}`)).toContainText(stillIn.label);
   await expect(page.getByTestId('report-close')).toHaveCount(0);
   await shot(page, 'closed');
+  await page.getByTestId('all-lost-keys').click();
+  await page.getByTestId('reports-status').click();
+  await page.getByRole('option', { name: 'Closed reports' }).click();
+  await expect(page.getByTestId('report-row-AB1 #1')).toContainText('Closed, 1 core accepted');
 
   // The audit trail keeps the decision, in words.
   const { rows } = await apiGet<{ rows: { actionName: string; summary: string }[] }>(request, admin, '/api/audit-events?action=key-report.');
