@@ -83,3 +83,63 @@ describe('change keys one position apart', () => {
     expect(of(f, 'change-keys-one-apart')).toEqual([]);
   });
 });
+
+describe('key findings at their edges (worked out by hand)', () => {
+  const changes = (bittings: string[]) => bittings.map((b, i) => ({ ...key(`AA${i + 1}`, b, []), level: 'change' as const }));
+
+  test('an unreadable bitting is named by the key’s symbol and id, with what is wrong', () => {
+    const f = auditSystem(sfic6, { ...base, keys: [...base.keys, { id: 'k-b', symbol: 'B', bitting: '4x4444', opens: [] }] });
+    expect(of(f, 'bad-bitting')).toEqual([expect.objectContaining({
+      keys: ['B'], keyIds: ['k-b'],
+      message: 'Key B: Chamber 2: “x” is not a depth; type one digit per chamber and nothing else.',
+    })]);
+  });
+
+  test('a named top master the system does not hold: no parity to compare with, and no error', () => {
+    const f = auditSystem(sfic6, { ...base, topMaster: 'ZZ', keys: [...base.keys, key('B', '434445')] });
+    expect(of(f, 'parity-broken')).toEqual([]);
+  });
+
+  test('the maximum adjacent cut: the difference of cuts 1 and 9 is 8', () => {
+    const tight: Profile = { ...sfic6, maxAdjacentCut: 7 };
+    const f = auditSystem(tight, { ...base, keys: [...base.keys, key('B', '419444')] });
+    expect(of(f, 'macs-exceeded').map((x) => x.message)).toEqual(['Key B: cuts in chambers 2 and 3 differ by 8, more than the 7 this profile allows.']);
+  });
+
+  test('two groups in the same chamber: the chamber named once, "chamber" for one', () => {
+    // AA1/AA2 and AA3/AA4 each differ only in chamber 2; AA1 and AA3 differ in chambers 5 and 6.
+    const f = auditSystem(sfic6, { ...base, keys: [...base.keys, ...changes(['424444', '464444', '424466', '464466'])] });
+    const [one] = of(f, 'change-keys-one-apart');
+    expect(one).toMatchObject({ chambers: [2], data: { groups: 2, keys: 4 } });
+    expect(one?.message).toBe('2 groups of change keys (4 keys) differ in one position only, by two steps or more: the normal minimum of two-step progression, in chamber 2.');
+  });
+
+  /*
+   * Total position progression of our own: chambers 1..p take every depth of a list, the
+   * others stay constant. A chamber progressed over d depths, with d^(p−1) combinations of
+   * the other progressed chambers, makes d^(p−1) groups (brute-force count: p × d^(p−1)).
+   */
+  const progression = (depths: number[], p: number, rest: string): string[] => {
+    let out = [''];
+    for (let i = 0; i < p; i++) out = out.flatMap((s) => depths.map((d) => `${s}${d}`));
+    return out.map((s) => s + rest);
+  };
+
+  test('exactly 500 groups: every group listed, no "more" line', () => {
+    const keys = progression([0, 2, 4, 6, 8], 4, '22');
+    expect(keys).toHaveLength(625);
+    const [one] = of(auditSystem(sfic6, { ...base, keys: [...base.keys, ...changes(keys)] }), 'change-keys-one-apart');
+    expect(one).toMatchObject({ chambers: [1, 2, 3, 4], data: { groups: 500, keys: 625 } });
+    expect(one?.details).toHaveLength(500);
+    expect(one?.details?.some((line) => line.startsWith('and '))).toBe(false);
+  });
+
+  test('1,280 groups: the first 500 listed and a line for the other 780', () => {
+    const keys = progression([0, 2, 4, 6], 5, '2');
+    expect(keys).toHaveLength(1024);
+    const [one] = of(auditSystem(sfic6, { ...base, keys: [...base.keys, ...changes(keys)] }), 'change-keys-one-apart');
+    expect(one).toMatchObject({ chambers: [1, 2, 3, 4, 5], data: { groups: 1280, keys: 1024 } });
+    expect(one?.details).toHaveLength(501);
+    expect(one?.details?.[500]).toBe('and 780 more groups');
+  });
+});
