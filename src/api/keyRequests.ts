@@ -14,6 +14,8 @@ export const proposeKey = (doorIds: string[], keyId?: string) => request('POST',
 export const createRequest = async (input: KeyRequestInput) => (await request('POST', '/api/key-requests', { body: input, schema: KeyRequestAnswer })).request;
 export const listRequests = async (status?: RequestStatus) => (await request('GET', `/api/key-requests${toQuery({ status })}`, { schema: KeyRequestList })).requests;
 export const getRequest = async (id: string) => (await request('GET', `/api/key-requests/${id}`, { schema: KeyRequestAnswer })).request;
+/** The approval e-mail again: each authoriser gets a new link; the links not used yet stop working. */
+export const resendRequest = async (id: string) => (await request('POST', `/api/key-requests/${id}/resend`, { schema: KeyRequestAnswer })).request;
 export const decideRequest = async (id: string, input: KeyDecisionInput) => (await request('POST', `/api/key-requests/${id}/decision`, { body: input, schema: KeyRequestAnswer })).request;
 
 /** The authoriser's link: no sign-in, the token from the address's fragment. */

@@ -39,21 +39,24 @@ export interface Mail {
   text: string;
 }
 
-/** Waits until a captured mail to `to` matches; mail is sent after the request answers, so poll. */
-export async function waitForMail(request: APIRequestContext, to: string, subject: RegExp): Promise<Mail> {
-  let found: Mail | undefined;
+/**
+ * Waits until a captured mail to `to` matches (at least `count` of them); mail is sent after the request answers, so
+ * poll. The newest match (the mailbox lists newest first).
+ */
+export async function waitForMail(request: APIRequestContext, to: string, subject: RegExp, count = 1): Promise<Mail> {
+  let found: Mail[] = [];
   await expect
     .poll(
       async () => {
         const res = await request.get(`/api/dev/mailbox?to=${encodeURIComponent(to)}`);
         const { messages } = (await res.json()) as { messages: Mail[] };
-        found = messages.find((m) => subject.test(m.subject));
-        return !!found;
+        found = messages.filter((m) => subject.test(m.subject));
+        return found.length >= count;
       },
-      { timeout: 10_000, message: `a mail to ${to} with subject ${subject}` },
+      { timeout: 10_000, message: `${count === 1 ? 'a mail' : `${count} mails`} to ${to} with subject ${subject}` },
     )
     .toBe(true);
-  return found!;
+  return found[0]!;
 }
 
 export const csv = (name: string, lines: string[]) => ({ name, mimeType: 'text/csv', buffer: Buffer.from(`${lines.join('\n')}\n`, 'utf8') });
