@@ -86,6 +86,8 @@ describe('the top master', () => {
     expect(pick([key('g', '244444', [], 'grand-master'), key('gg', '224444', [], 'great-grand-master')])).toBe(1);
     expect(pick([key('m1', '444444', ['a', 'b']), key('m2', '244444', ['a', 'b', 'c']), key('m3', '224444', ['a', 'b', 'c'])])).toBe(1);
     expect(pick([key('c1', '444444', ['a']), key('c2', '244444', [])])).toBe(0);
+    // A lower level never wins on the number of cores: the grand master meant for one core stays above a master meant for three.
+    expect(pick([key('g', '244444', ['a'], 'grand-master'), key('m', '444444', ['a', 'b', 'c'])])).toBe(0);
     expect(pick([key('bad', '4x4444', ['a', 'b'])])).toBe(-1);
     expect(pick([])).toBe(-1);
   });
