@@ -175,6 +175,10 @@ describe('remind now, send a link again', () => {
     // Not a reminder: the count stays, the time moves.
     expect(res.json.keyAudit.people.find((p: { name: string }) => p.name === 'Bo Linden (demo)').reminders).toBe(0);
     expect(await h.db('audit_events').where({ action: 'key-audit.link-resent', target_id: audit.id }).first('details')).toMatchObject({ details: { holder: 'Bo Linden (demo)' } });
+    // The audit trail names it in words: the key audit by number and title (its stored target type is key-campaign).
+    const trail = await h.call('GET', '/api/audit-events?action=key-audit.&pageSize=10', { token: await h.tokenFor('admin') });
+    expect(trail.status, trail.text).toBe(200);
+    expect(trail.json.rows[0]).toMatchObject({ actionName: "Sent a holder's key audit link again", target: `Key audit #${audit.number} Spring key audit` });
     await answerAll(fresh);
     const again = await h.call('POST', `/api/key-audits/${audit.id}/holders/${bo}/resend`, { token: lead });
     expect(again.status).toBe(409);
@@ -211,6 +215,8 @@ describe('a key request\'s approval e-mail sent again', () => {
     }
     expect((await h.call('GET', `/api/key-requests/${id}`, { token: lead })).json.request.status).toBe('pending');
     expect(await h.db('audit_events').where({ action: 'key-request.link-resent', target_id: id }).first('details')).toMatchObject({ details: { authorisers: 1 } });
+    const trail = await h.call('GET', '/api/audit-events?action=key-request.link-resent&pageSize=10', { token: await h.tokenFor('admin') });
+    expect(trail.json.rows[0]).toMatchObject({ actionName: "Sent a key request's approval e-mail again", target: `Key request #${made.json.request.number} for Ada Quill (demo)` });
     const decided = await h.call('POST', '/api/key-request-links/decide', { body: { token: newToken, decision: 'approved' } });
     expect(decided.status, decided.text).toBe(200);
     const late = await h.call('POST', `/api/key-requests/${id}/resend`, { token: lead });

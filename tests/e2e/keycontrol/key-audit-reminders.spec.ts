@@ -109,6 +109,8 @@ test('a key audit: remind now, a link sent again, the old link replaced, the key
   // A row without its button shows an empty cell, never the holder's id.
   expect(await page.getByTestId('key-audit-people').innerText()).not.toMatch(/[0-9a-f]{8}-[0-9a-f]{4}-/);
   await shot(page, 'closed');
+  await page.getByText('All key audits', { exact: true }).click();
+  await expect(page.getByTestId(`key-audit-row-${keyAudit.number}`)).toContainText('closed');
   const ada = await waitForMail(page.request, 'ada@demo.corewright.test', reminder, 1);
   await page.goto(linkIn(ada, '/confirm-keys'));
   await expect(page.locator('.q-card')).toContainText('This key audit is closed');
