@@ -201,9 +201,13 @@ export async function closeKeyAudit(db: Knex, id: string, by: string): Promise<{
   return { number: c.number, unanswered };
 }
 
-/** Where the owed-mail job and the reminder queue agree a holder may still be asked. */
+/**
+ * Where the owed-mail job and "remind now" agree a holder may still be asked: not answered, the key audit open, an
+ * e-mail on record, and no reminder of the last day still on its way (one that never went, its notification given up
+ * after ten failures, does not hold the holder back for good).
+ */
 const stillAsking = `ch.answered_at is null and c.closed_at is null and c.expires_at > now() and h.email is not null
-  and not exists (select 1 from key_audit_reminders p where p.campaign_holder_id = ch.id and p.done_at is null)`;
+  and not exists (select 1 from key_audit_reminders p where p.campaign_holder_id = ch.id and p.done_at is null and p.created_at > now() - interval '1 day')`;
 
 /**
  * The daily reminders: one per holder who has not answered, whose last mail is a day old, in an open

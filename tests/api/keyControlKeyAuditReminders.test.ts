@@ -105,6 +105,20 @@ describe('the daily reminder', () => {
     expect((await person(audit.id, 'Bo Linden (demo)')).reminders).toBe(2);
   });
 
+  test('a reminder still on its way holds back the next one, but not for ever: one that never went is passed over after a day', async () => {
+    const audit = await startLibraryAudit();
+    const bo = await h.db('key_campaign_holders as ch').join('key_holders as h', 'h.id', 'ch.holder_id').where({ 'ch.campaign_id': audit.id, 'h.email': BO }).first<{ id: string }>('ch.id');
+    // Yesterday's reminder, never sent (its notification gave up): none is queued beside one still on its way today...
+    const [stuck] = await h.db('key_audit_reminders').insert({ campaign_holder_id: bo.id, day: h.db.raw('current_date - 1') }).returning('id');
+    await dayLater(audit.id);
+    expect(await queueKeyAuditReminders(h.db)).toBe(1); // Ada only
+    // ...but once it is a day old, Bo is asked again.
+    await h.db('key_audit_reminders').where({ id: stuck.id }).update({ created_at: h.db.raw(`now() - interval '25 hours'`) });
+    expect(await queueKeyAuditReminders(h.db)).toBe(1);
+    await sendPending(deps());
+    expect((await person(audit.id, 'Bo Linden (demo)')).reminders).toBe(1);
+  });
+
   test('not after the key audit closes or passes its deadline, nor a reminder queued before the close; the closed links say so', async () => {
     const audit = await startLibraryAudit();
     await dayLater(audit.id);
