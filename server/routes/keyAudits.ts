@@ -50,8 +50,9 @@ export function keyAuditsRouter({ db, mailer, config }: Ctx): Router {
       const done = await remindNow(trx, id, req.user!.id);
       await audit(trx, actorOf(req), 'key-audit.reminded', { type: 'key-campaign', id }, { holders: done.holders });
     });
-    // After the commit, now rather than at the next minute; each row is sent under its lock, so never twice.
-    await sendPending({ db, mailer, config });
+    // After the commit, now rather than at the next minute; each row is sent under its lock, so never twice. A failure
+    // here leaves the reminders queued for the owed-mail job and does not turn the committed change into an error.
+    await sendPending({ db, mailer, config }).catch(() => 0);
     res.json({ keyAudit: await getKeyAudit(db, id) });
   });
   /** Sends one holder their link again: a new single-use link; the old one answers that a newer e-mail replaced it. */
