@@ -81,3 +81,25 @@ describe('who lines up the control shear line (the primer’s example)', () => {
     expect(unreadable.filter((f) => f.code === 'control-openings')).toEqual([]);
   });
 });
+
+describe('the control-line findings at their edges (the same example, worked out by hand)', () => {
+  test('a key that releases one core: "that core"', () => {
+    const one = auditSystem(kit6, { ...system, cores: [system.cores[0]!] });
+    expect(one.filter((f) => f.code === 'key-releases-core').map((f) => [f.keys, f.cores, f.message])).toEqual([[
+      ['AB1'], ['R1'], 'Key AB1 lines up the control shear line of 1 core it is not the control key of: Room 1. Whoever holds it can remove that core.',
+    ]]);
+  });
+
+  test('two cores tied for the most control openings: the first one is named', () => {
+    const twin = { ...system.cores[0]!, id: 'R1b', label: 'Room 1b' };
+    const [summary] = auditSystem(kit6, { ...system, cores: [system.cores[0]!, twin] }).filter((f) => f.code === 'control-openings');
+    expect(summary?.message).toMatch(/bittings, core Room 1\): Room 1 and Room 1b\.$/);
+  });
+
+  test('the advice follows the count: something to do only when a core releases for more than the control key', () => {
+    const [over] = auditSystem(kit6, system).filter((f) => f.code === 'control-openings');
+    expect(over?.advice).toMatch(/^Each extra opening comes from a two-wafer build-up/);
+    const [alone] = auditSystem(sfic6, system).filter((f) => f.code === 'control-openings');
+    expect(alone?.advice).toBe('Nothing to do; keep build-ups to one stocked wafer where you can.');
+  });
+});

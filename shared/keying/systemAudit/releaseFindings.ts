@@ -22,7 +22,8 @@ export function releaseFindings(ctx: SystemAuditContext, releasing: number[][]):
       else byKey.set(k, [c]);
     }
   });
-  for (const [k, cores] of [...byKey].sort((a, b) => a[0] - b[0])) {
+  // In first-seen order: auditSystem sorts the findings by key (their `order`).
+  for (const [k, cores] of byKey) {
     const refs = keyRefs(ctx, [k]);
     out.push(finding('key-releases-core', k, {
       message: `Key ${refs.keys[0] ?? ''} lines up the control shear line of ${plural(cores.length, 'core')} it is not the control key of: ${nameList(cores.slice(0, 6).map((c) => coreName(ctx, c)), 5, cores.length)}. Whoever holds it can remove ${cores.length === 1 ? 'that core' : 'those cores'}.`,
