@@ -16,7 +16,8 @@ export function keysReleasingIndexed(ctx: SystemAuditContext): number[][] {
   const masks = new Int32Array(profile.chambers);
   const scratch = new KeyList();
   return pinnings.map((pinning) => {
-    if (pinning.chambers.length !== profile.chambers || pinning.controlOpeningsCount === 0) return [];
+    // pinCore charts every chamber or none, and a core without a chart releases for nothing (count 0).
+    if (pinning.controlOpeningsCount === 0) return [];
     for (let i = 0; i < profile.chambers; i++) masks[i] = controlDepthMask(pinning.chambers[i]!, profile);
     // Collected in one reused typed list, sorted there and copied once at its final size.
     keysMatching(ctx, masks, pinning.controlOpeningsCount, scratch);
