@@ -23,6 +23,7 @@ describe('parseBitting', () => {
   test.each([
     ['246802', 'bitting-length', undefined, 'The bitting has 6 cuts; SFIC 7-pin, .0125 in steps, stack 23 takes 7, one digit per chamber, chamber 1 first.'],
     ['', 'bitting-length', undefined, 'The bitting has 0 cuts; SFIC 7-pin, .0125 in steps, stack 23 takes 7, one digit per chamber, chamber 1 first.'],
+    ['2', 'bitting-length', undefined, 'The bitting has 1 cut; SFIC 7-pin, .0125 in steps, stack 23 takes 7, one digit per chamber, chamber 1 first.'],
     ['24-8024', 'bitting-not-digit', 3, 'Chamber 3: “-” is not a depth; type one digit per chamber and nothing else.'],
   ])('%j throws %s', (input, code, chamber, message) => {
     const error = (() => {
