@@ -33,6 +33,7 @@ export const partSizeRange = { min: 0, max: 30 } as const satisfies Range;
 /** How many sizes of one part a profile lists. */
 export const stockedSizesRange = { min: 1, max: 40 } as const satisfies Range;
 
-export const isWhole = (n: unknown): n is number => typeof n === 'number' && Number.isInteger(n);
+// Number.isInteger is false for anything that is not a number, so no typeof test is needed.
+export const isWhole = (n: unknown): n is number => Number.isInteger(n);
 /** A whole number within the range. */
 export const within = (n: unknown, range: Range): boolean => isWhole(n) && n >= range.min && n <= range.max;
