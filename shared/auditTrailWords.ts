@@ -65,6 +65,7 @@ export const actionWords: Record<string, string> = {
   'key-report.still-turns': 'The old key still turns installed cores after its rekey',
   'key-report.closed': 'Closed a lost key report',
   'key.reissued': 'Issued the new key for a retired one',
+  'control-key.retired': 'Retired a control key (every core rebuilt for the new one)',
   'key-campaign.started': 'Started a key audit',
   'key-campaign.answered': 'A holder confirmed their keys',
   'key-audit.reminded': "Reminded the key audit's holders who have not answered",
@@ -94,7 +95,7 @@ export const actionGroups = [
   { label: 'Users and invitations', value: 'user.' },
   { label: 'Tablets and sync', value: 'device.,sync.' },
   { label: 'Access refused', value: 'access.denied' },
-  { label: 'Key control (holders, requests, issues, lost keys, audits)', value: 'department.,holder.,holders.,key-request.,key.issued,key.returned,key.transferred,key.reported,key.reissued,key-report.,key-campaign.,key-audit.' },
+  { label: 'Key control (holders, requests, issues, lost keys, audits)', value: 'department.,holder.,holders.,key-request.,key.issued,key.returned,key.transferred,key.reported,key.reissued,key-report.,key-campaign.,key-audit.,control-key.' },
 ] as const;
 
 const whatWords: Record<string, string> = { control: 'the control key', keys: 'the key bittings', charts: 'the pinning charts', 'progression-preview': 'a progression preview' };

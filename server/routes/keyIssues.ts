@@ -1,4 +1,7 @@
-/** Key copies issued, returned and chased; the cut list (bittings) for supervisors and admins, audited. */
+/**
+ * Key copies issued, returned, passed on and chased; the cut list (bittings) for supervisors and admins, audited.
+ * A system's control key is issued like any key, by the same roles (supervisors and administrators).
+ */
 import { Router } from 'express';
 import { Id } from '../../shared/schemas/common';
 import { CutListQuery, KeyIssueInput, KeyIssueQuery, KeyReturnInput, KeyTransferInput } from '../../shared/schemas/keyControl';
@@ -6,12 +9,17 @@ import type { Ctx } from '../context';
 import { actorOf, allow } from '../middleware/auth';
 import { parse } from '../middleware/validate';
 import { audit } from '../services/auditTrail';
+import { listControlKeys } from '../services/controlKeys';
 import { cutList, getIssue, issueKey, listIssues, outstandingKeys, returnKey, transferKey } from '../services/keyIssues';
 
 const office = allow('supervisor', 'admin');
 
 export function keyIssuesRouter({ db, sealer }: Ctx): Router {
   const r = Router();
+  /** A system's control keys as key control tracks them (symbol, status, copies out; never a bitting). */
+  r.get('/key-systems/:id/control-keys', office, async (req, res) => {
+    res.json({ controlKeys: await listControlKeys(db, parse(Id, req.params.id, 'The key system id')) });
+  });
   r.get('/key-issues', office, async (req, res) => {
     res.json({ issues: await listIssues(db, parse(KeyIssueQuery, req.query, 'The filter')) });
   });
@@ -19,7 +27,8 @@ export function keyIssuesRouter({ db, sealer }: Ctx): Router {
     const input = parse(KeyIssueInput, req.body, 'The key issue');
     const id = await db.transaction(async (trx) => {
       const created = await issueKey(trx, input, req.user!.id);
-      await audit(trx, actorOf(req), 'key.issued', { type: 'key-issue', id: created }, { signed: Boolean(input.acknowledgement.signature) });
+      const control = await trx('key_issues').where({ id: created }).whereNotNull('control_key_id').first('id');
+      await audit(trx, actorOf(req), 'key.issued', { type: 'key-issue', id: created }, { signed: Boolean(input.acknowledgement.signature), ...(control ? { control: true } : {}) });
       return created;
     });
     res.status(201).json({ issue: await getIssue(db, id) });

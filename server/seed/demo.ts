@@ -10,7 +10,7 @@ import { randomUUID } from 'node:crypto';
 import type { Knex } from 'knex';
 import { builtInProfiles, progressKeys } from '../../shared/keying';
 import { hashPassword } from '../services/passwords';
-import { controlContext, keyContext, loadSystem } from '../services/keySystems';
+import { CONTROL_SYMBOL, controlContext, keyContext, loadSystem } from '../services/keySystems';
 import type { Sealer } from '../services/secrets';
 import { createWorkOrder } from '../services/workOrders';
 import { hashRecord } from '../services/canonical';
@@ -61,6 +61,7 @@ export async function seedDemo(db: Knex, sealer: Sealer): Promise<void> {
     const ids = Object.fromEntries((await trx('users').select('email', 'id')).map((u: { email: string; id: string }) => [u.email, u.id]));
     const systemId = randomUUID();
     await trx('key_systems').insert({ id: systemId, name: 'Quillon Hill College', profile_id: profile.id, control_enc: sealer.seal(CONTROL, controlContext(systemId)), notes: 'Fictional demo campus. Three buildings, 60 openings.' });
+    await trx('control_keys').insert({ key_system_id: systemId, symbol: CONTROL_SYMBOL });
 
     const keys: SeedKey[] = [{ id: randomUUID(), symbol: 'A', level: 'gm', parent: null, bitting: GM }];
     for (const m of masters) {

@@ -46,7 +46,7 @@ function auditQuery(db: Knex, f: AuditFilter) {
 const auditColumns = ['e.id', 'e.at', 'e.actor_id as actorId', 'e.actor_email as actorEmail', 'u.name as actorName', 'e.action', 'e.target_type as targetType', 'e.target_id as targetId', 'e.ip', 'e.details'];
 
 const uuid = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
-const typeWords: Record<string, string> = { 'key-system': 'Key system', key: 'Key', door: 'Door', core: 'Core', 'work-order': 'Work order', 'work-order-packet': 'Packet of work order', user: 'User', profile: 'Profile', device: 'Tablet', completion: 'Completion', 'sync-record': 'A synced record', 'key-issue': 'Key copy', 'key-campaign': 'Key audit', 'key-request': 'Key request', 'key-report': 'Lost key report' };
+const typeWords: Record<string, string> = { 'key-system': 'Key system', key: 'Key', door: 'Door', core: 'Core', 'work-order': 'Work order', 'work-order-packet': 'Packet of work order', user: 'User', profile: 'Profile', device: 'Tablet', completion: 'Completion', 'sync-record': 'A synced record', 'key-issue': 'Key copy', 'key-campaign': 'Key audit', 'key-request': 'Key request', 'control-key': 'Control key', 'key-report': 'Lost key report' };
 
 /** Names for every record and user the page's rows mention, fetched once per table. */
 async function namesFor(db: Knex, rows: Row[]): Promise<Map<string, string>> {
@@ -63,11 +63,12 @@ async function namesFor(db: Knex, rows: Row[]): Promise<Map<string, string>> {
   if (ids(['core']).length) put(await db('cores').whereIn('id', ids(['core'])).select('id', 'tag as name'));
   if (ids(['work-order', 'work-order-packet']).length) put(await db('work_orders').whereIn('id', ids(['work-order', 'work-order-packet'])).select('id', db.raw(`'#' || number || ' ' || title as name`)));
   if (deviceIds.length) put(await db('devices as d').join('users as u', 'u.id', 'd.user_id').whereIn('d.id', deviceIds).select('d.id', db.raw(`coalesce(d.label, 'tablet') || ' of ' || u.name as name`)));
-  if (ids(['key-issue']).length) put(await db('key_issues as i').join('keys as k', 'k.id', 'i.key_id').join('key_holders as h', 'h.id', 'i.holder_id').whereIn('i.id', ids(['key-issue'])).select('i.id', db.raw(`k.symbol || ' #' || i.copy_number || ' of ' || h.name as name`)));
+  if (ids(['key-issue']).length) put(await db('key_issues as i').leftJoin('keys as k', 'k.id', 'i.key_id').leftJoin('control_keys as ck', 'ck.id', 'i.control_key_id').join('key_holders as h', 'h.id', 'i.holder_id').whereIn('i.id', ids(['key-issue'])).select('i.id', db.raw(`coalesce(k.symbol, ck.symbol) || ' #' || i.copy_number || ' of ' || h.name as name`)));
   // A key audit's stored target type is key-campaign (its table's name); on screen it is a key audit.
   if (ids(['key-campaign']).length) put(await db('key_campaigns').whereIn('id', ids(['key-campaign'])).select('id', db.raw(`'#' || number || ' ' || title as name`)));
   if (ids(['key-request']).length) put(await db('key_requests as r').join('key_holders as h', 'h.id', 'r.holder_id').whereIn('r.id', ids(['key-request'])).select('r.id', db.raw(`'#' || r.number || ' for ' || h.name as name`)));
-  if (ids(['key-report']).length) put(await db('key_reports as r').join('key_issues as i', 'i.id', 'r.issue_id').join('keys as k', 'k.id', 'i.key_id').join('key_holders as h', 'h.id', 'i.holder_id').whereIn('r.id', ids(['key-report'])).select('r.id', db.raw(`k.symbol || ' #' || i.copy_number || ' of ' || h.name as name`)));
+  if (ids(['key-report']).length) put(await db('key_reports as r').join('key_issues as i', 'i.id', 'r.issue_id').leftJoin('keys as k', 'k.id', 'i.key_id').leftJoin('control_keys as ck', 'ck.id', 'i.control_key_id').join('key_holders as h', 'h.id', 'i.holder_id').whereIn('r.id', ids(['key-report'])).select('r.id', db.raw(`coalesce(k.symbol, ck.symbol) || ' #' || i.copy_number || ' of ' || h.name as name`)));
+  if (ids(['control-key']).length) put(await db('control_keys as k').join('key_systems as s', 's.id', 'k.key_system_id').whereIn('k.id', ids(['control-key'])).select('k.id', db.raw(`k.symbol || ' in ' || s.name as name`)));
   if (detailIds.length) put(await db('key_holders').whereIn('id', detailIds).select('id', 'name'));
   if (ids(['completion']).length) put(await db('completions as c').join('cores as k', 'k.id', 'c.core_id').whereIn('c.id', ids(['completion'])).select('c.id', db.raw(`'of core ' || k.tag as name`)));
   return names;

@@ -40,10 +40,10 @@ export interface StartedKeyAudit {
 export async function startKeyAudit(db: Knex, input: KeyAuditInput, by: string): Promise<StartedKeyAudit> {
   const scope = input.keySystemId ? await db('key_systems').where({ id: input.keySystemId }).first('id') : await db('departments').where({ id: input.departmentId! }).first('id');
   if (!scope) throw badRequest(input.keySystemId ? 'There is no key system with that id.' : 'There is no department with that id.', [{ field: input.keySystemId ? 'keySystemId' : 'departmentId', message: 'unknown' }]);
-  const q = db('key_issues as i').join('key_holders as h', 'h.id', 'i.holder_id').join('keys as k', 'k.id', 'i.key_id').where('i.status', 'out');
-  if (input.keySystemId) q.where('k.key_system_id', input.keySystemId);
+  const q = db('key_issues as i').join('key_holders as h', 'h.id', 'i.holder_id').leftJoin('keys as k', 'k.id', 'i.key_id').leftJoin('control_keys as ck', 'ck.id', 'i.control_key_id').where('i.status', 'out');
+  if (input.keySystemId) q.whereRaw('coalesce(k.key_system_id, ck.key_system_id) = ?', [input.keySystemId]);
   else q.where('h.department_id', input.departmentId!);
-  const copies = await q.select<OutCopy[]>('i.id as issueId', 'h.id as holderId', 'h.name', 'h.email', 'k.symbol as keySymbol', 'i.copy_number as copyNumber');
+  const copies = await q.select<OutCopy[]>('i.id as issueId', 'h.id as holderId', 'h.name', 'h.email', db.raw('coalesce(k.symbol, ck.symbol) as "keySymbol"'), 'i.copy_number as copyNumber');
   const asked = copies.filter((c) => c.email);
   if (!asked.length) throw conflict('No holder with an e-mail on record has a key out in that scope: there is no one to ask.', [{ field: input.keySystemId ? 'keySystemId' : 'departmentId', message: 'no one to ask' }]);
   const { nextval } = ((await db.raw(`select nextval('key_campaign_number_seq')::int as nextval`)).rows as { nextval: number }[])[0]!;
@@ -68,8 +68,8 @@ function copiesQuery(db: Knex) {
     .join('key_holders as h', 'h.id', 'ch.holder_id')
     .join('departments as d', 'd.id', 'h.department_id')
     .join('key_issues as i', 'i.id', 'cc.issue_id')
-    .join('keys as k', 'k.id', 'i.key_id')
-    .select('ch.campaign_id as keyAuditId', 'h.id as holderId', 'h.name', 'd.name as department', 'h.email', 'ch.answered_at as answeredAt', 'ch.mailed_at as mailedAt', 'ch.reminders', 'i.id as issueId', 'k.symbol as keySymbol', 'i.copy_number as copyNumber', 'cc.answer', 'cc.report_id as reportId');
+    .leftJoin('keys as k', 'k.id', 'i.key_id').leftJoin('control_keys as ck', 'ck.id', 'i.control_key_id')
+    .select('ch.campaign_id as keyAuditId', 'h.id as holderId', 'h.name', 'd.name as department', 'h.email', 'ch.answered_at as answeredAt', 'ch.mailed_at as mailedAt', 'ch.reminders', 'i.id as issueId', db.raw('coalesce(k.symbol, ck.symbol) as "keySymbol"'), 'i.copy_number as copyNumber', 'cc.answer', 'cc.report_id as reportId');
 }
 
 const iso = (d: Date | null) => (d ? new Date(d).toISOString() : null);
@@ -85,8 +85,8 @@ async function summaries(db: Knex, id?: string): Promise<(KeyAuditSummary & { ro
     const people = new Set(mine.map((r) => r.holderId));
     const answered = new Set(mine.filter((r) => r.answeredAt).map((r) => r.holderId));
     // Holders with keys out in the scope today but no e-mail: not asked.
-    const nq = db('key_issues as i').join('key_holders as h', 'h.id', 'i.holder_id').join('keys as k', 'k.id', 'i.key_id').where('i.status', 'out').whereNull('h.email').distinct('h.name');
-    if (c.key_system_id) nq.where('k.key_system_id', c.key_system_id);
+    const nq = db('key_issues as i').join('key_holders as h', 'h.id', 'i.holder_id').leftJoin('keys as k', 'k.id', 'i.key_id').leftJoin('control_keys as ck', 'ck.id', 'i.control_key_id').where('i.status', 'out').whereNull('h.email').distinct('h.name');
+    if (c.key_system_id) nq.whereRaw('coalesce(k.key_system_id, ck.key_system_id) = ?', [c.key_system_id]);
     else nq.where('h.department_id', c.department_id);
     const noEmail = ((await nq) as { name: string }[]).map((r) => r.name).sort(naturalCompare);
     out.push({

@@ -9,6 +9,7 @@ import type { DoorAccess, ExposedCore, ExposedHolder, Exposure, HolderAccess } f
 import { naturalCompare } from '../../shared/words';
 import { notFound } from '../errors';
 import { joinHolder } from './keyHolders';
+import { controlBitting, findControlKey } from './controlKeys';
 import { loadSystem, type LoadedSystem } from './keySystems';
 import type { Sealer } from './secrets';
 
@@ -17,6 +18,8 @@ interface InstalledCore {
   tag: string;
   doorId: string | null;
   doorLabel: string | null;
+  /** The replaced control key it was built for, or null: the system's control key now. */
+  controlKeyId: string | null;
   operating: string[];
 }
 
@@ -24,7 +27,7 @@ interface InstalledCore {
 export async function installedCores(db: Knex, systemId: string, doorId?: string): Promise<InstalledCore[]> {
   const q = db('cores as c').leftJoin('doors as d', 'd.id', 'c.door_id').where({ 'c.key_system_id': systemId, 'c.state': 'installed' });
   if (doorId) q.where('c.door_id', doorId);
-  const cores = await q.select<Omit<InstalledCore, 'operating'>[]>('c.id', 'c.tag', 'd.id as doorId', 'd.label as doorLabel');
+  const cores = await q.select<Omit<InstalledCore, 'operating'>[]>('c.id', 'c.tag', 'd.id as doorId', 'd.label as doorLabel', 'c.control_key_id as controlKeyId');
   const links = await db('core_keys').whereIn('core_id', doorId ? cores.map((c) => c.id) : db('cores').where({ key_system_id: systemId, state: 'installed' }).select('id')).select<{ core_id: string; key_id: string }[]>('core_id', 'key_id');
   const byCore = new Map<string, string[]>();
   for (const l of links) {
@@ -37,20 +40,33 @@ export async function installedCores(db: Knex, systemId: string, doorId?: string
 
 const howRank = { intended: 0, incidental: 1, control: 2 } as const;
 
-/** The pure part: which of these cores the key turns or removes, sorted for people. */
+/**
+ * The pure part: which of these cores the key turns or removes, sorted for people. Each core is read with
+ * the control key it was built for (the system's, or a replaced one's while its cores are still in doors).
+ */
 export function exposedCores(system: LoadedSystem, cores: InstalledCore[], key: { id?: string; bitting: string }): ExposedCore[] {
-  const input: ExposureInput = { keys: system.keys, cores, control: system.control };
-  return keyExposure(system.profile, input, key)
-    .map(({ core, how }) => {
-      const c = cores[core]!;
-      return { id: c.id, tag: c.tag, doorId: c.doorId, doorLabel: c.doorLabel, how };
-    })
-    .sort((a, b) => howRank[a.how] - howRank[b.how] || naturalCompare(a.doorLabel ?? a.tag, b.doorLabel ?? b.tag));
+  const byControl = new Map<string, number[]>();
+  cores.forEach((c, i) => {
+    const control = (c.controlKeyId && system.replacedControls[c.controlKeyId]) || system.control;
+    const list = byControl.get(control);
+    if (list) list.push(i);
+    else byControl.set(control, [i]);
+  });
+  const out: ExposedCore[] = [];
+  for (const [control, indexes] of byControl) {
+    const input: ExposureInput = { keys: system.keys, cores: indexes.map((i) => cores[i]!), control };
+    for (const { core, how } of keyExposure(system.profile, input, key)) {
+      const c = cores[indexes[core]!]!;
+      out.push({ id: c.id, tag: c.tag, doorId: c.doorId, doorLabel: c.doorLabel, how });
+    }
+  }
+  return out.sort((a, b) => howRank[a.how] - howRank[b.how] || naturalCompare(a.doorLabel ?? a.tag, b.doorLabel ?? b.tag));
 }
 
-export async function holdersOfKey(db: Knex, keyId: string): Promise<ExposedHolder[]> {
+/** Every holder of a copy of the key (or control key) out, lost or stolen. */
+export async function holdersOfKey(db: Knex, keyId: string, column: 'key_id' | 'control_key_id' = 'key_id'): Promise<ExposedHolder[]> {
   return joinHolder(db('key_issues as i'), 'i.holder_id')
-    .where('i.key_id', keyId)
+    .where(`i.${column}`, keyId)
     .whereIn('i.status', ['out', 'lost', 'stolen'])
     .orderBy('i.copy_number')
     .select('i.id as issueId', 'h.id as holderId', 'h.name', 'd.name as department', 'i.copy_number as copyNumber', 'i.status');
@@ -68,10 +84,10 @@ function exposureOf(systemId: string, keyId: string | null, keySymbol: string, c
   };
 }
 
-/** What a stored key exposes: every installed core it turns or removes, and every holder of a copy. */
+/** What a stored key (or a control key) exposes: every installed core it turns or removes, and every holder of a copy. */
 export async function keyExposureOf(db: Knex, sealer: Sealer, keyId: string): Promise<Exposure> {
   const row = await db('keys').where({ id: keyId }).first('key_system_id');
-  if (!row) throw notFound('That key');
+  if (!row) return controlKeyExposureOf(db, sealer, keyId);
   const system = await loadSystem(db, sealer, row.key_system_id);
   const key = system.keys.find((k) => k.id === keyId)!;
   const cores = exposedCores(system, await installedCores(db, system.id), key);
@@ -85,6 +101,35 @@ export async function controlExposureOf(db: Knex, sealer: Sealer, systemId: stri
   return exposureOf(systemId, null, 'control key', cores, []);
 }
 
+/**
+ * A control key's exposure: every installed core built for it (on a sound system, every core of the system, removed
+ * from its housing: `control`), through the engine like any key, and every holder of a copy of it.
+ */
+export async function controlKeyExposureOf(db: Knex, sealer: Sealer, controlKeyId: string): Promise<Exposure> {
+  const control = await findControlKey(db, controlKeyId);
+  if (!control) throw notFound('That key');
+  const system = await loadSystem(db, sealer, control.keySystemId);
+  const cores = exposedCores(system, await installedCores(db, system.id), { bitting: await controlBitting(db, sealer, controlKeyId) });
+  return exposureOf(system.id, control.id, control.symbol, cores, await holdersOfKey(db, controlKeyId, 'control_key_id'));
+}
+
+/** Copies out of a system's keys and control keys, each with the bitting the engine reads it by (bittings stay here). */
+async function copiesOut(db: Knex, sealer: Sealer, system: LoadedSystem, where: Record<string, string>) {
+  const rows = await joinHolder(db('key_issues as i'), 'i.holder_id')
+    .leftJoin('keys as k', 'k.id', 'i.key_id')
+    .leftJoin('control_keys as ck', 'ck.id', 'i.control_key_id')
+    .where({ 'i.status': 'out', ...where })
+    .whereRaw('coalesce(k.key_system_id, ck.key_system_id) = ?', [system.id])
+    .orderBy([{ column: 'keySymbol' }, { column: 'i.copy_number' }])
+    .select<{ issueId: string; holderId: string; name: string; department: string; keyId: string; keySymbol: string; copyNumber: number; control: boolean }[]>('i.id as issueId', 'h.id as holderId', 'h.name', 'd.name as department', db.raw('coalesce(i.key_id, i.control_key_id) as "keyId"'), db.raw('coalesce(k.symbol, ck.symbol) as "keySymbol"'), 'i.copy_number as copyNumber', db.raw('(i.control_key_id is not null) as control'));
+  const keyOf = new Map<string, { id?: string; bitting: string }>();
+  for (const r of rows) {
+    if (keyOf.has(r.keyId)) continue;
+    keyOf.set(r.keyId, r.control ? { bitting: await controlBitting(db, sealer, r.keyId) } : system.keys.find((k) => k.id === r.keyId)!);
+  }
+  return rows.map(({ control: _c, ...r }) => ({ ...r, key: keyOf.get(r.keyId)! }));
+}
+
 /** Every holder of a copy out whose key turns (or removes) the door's installed core. */
 export async function doorAccess(db: Knex, sealer: Sealer, doorId: string): Promise<DoorAccess> {
   const door = await db('doors').where({ id: doorId }).first('id', 'key_system_id');
@@ -93,17 +138,10 @@ export async function doorAccess(db: Knex, sealer: Sealer, doorId: string): Prom
   if (!core) return { coreId: null, coreTag: null, holders: [] };
   const system = await loadSystem(db, sealer, core.key_system_id);
   const [installed] = await installedCores(db, system.id, doorId);
-  const issues = await joinHolder(db('key_issues as i'), 'i.holder_id')
-    .join('keys as k', 'k.id', 'i.key_id')
-    .where({ 'k.key_system_id': system.id, 'i.status': 'out' })
-    .select<Omit<DoorAccess['holders'][number], 'how'>[]>('i.id as issueId', 'h.id as holderId', 'h.name', 'd.name as department', 'k.id as keyId', 'k.symbol as keySymbol', 'i.copy_number as copyNumber');
   const holders: DoorAccess['holders'] = [];
   const howOf = new Map<string, ExposedCore['how'] | null>();
-  for (const issue of issues) {
-    if (!howOf.has(issue.keyId)) {
-      const key = system.keys.find((k) => k.id === issue.keyId)!;
-      howOf.set(issue.keyId, exposedCores(system, [installed!], key)[0]?.how ?? null);
-    }
+  for (const { key, ...issue } of await copiesOut(db, sealer, system, {})) {
+    if (!howOf.has(issue.keyId)) howOf.set(issue.keyId, exposedCores(system, [installed!], key)[0]?.how ?? null);
     const how = howOf.get(issue.keyId);
     if (how) holders.push({ ...issue, how });
   }
@@ -114,18 +152,19 @@ export async function doorAccess(db: Knex, sealer: Sealer, doorId: string): Prom
 /** Every door the holder's copies out turn or remove, key by key. */
 export async function holderAccess(db: Knex, sealer: Sealer, holderId: string): Promise<HolderAccess> {
   if (!(await db('key_holders').where({ id: holderId }).first('id'))) throw notFound('That key holder');
-  const issues = await db('key_issues as i').join('keys as k', 'k.id', 'i.key_id').where({ 'i.holder_id': holderId, 'i.status': 'out' }).orderBy(['k.symbol', 'i.copy_number']).select<{ issueId: string; keyId: string; keySymbol: string; systemId: string; copyNumber: number }[]>('i.id as issueId', 'k.id as keyId', 'k.symbol as keySymbol', 'k.key_system_id as systemId', 'i.copy_number as copyNumber');
+  const systemIds = await db('key_issues as i')
+    .leftJoin('keys as k', 'k.id', 'i.key_id')
+    .leftJoin('control_keys as ck', 'ck.id', 'i.control_key_id')
+    .where({ 'i.holder_id': holderId, 'i.status': 'out' })
+    .distinct<{ systemId: string }[]>(db.raw('coalesce(k.key_system_id, ck.key_system_id) as "systemId"'));
   const doors: HolderAccess['doors'] = [];
-  const systems = new Map<string, { system: LoadedSystem; cores: InstalledCore[] }>();
-  for (const issue of issues) {
-    let s = systems.get(issue.systemId);
-    if (!s) {
-      const system = await loadSystem(db, sealer, issue.systemId);
-      systems.set(issue.systemId, (s = { system, cores: await installedCores(db, issue.systemId) }));
-    }
-    const key = s.system.keys.find((k) => k.id === issue.keyId)!;
-    for (const c of exposedCores(s.system, s.cores, key)) {
-      if (c.doorId) doors.push({ doorId: c.doorId, doorLabel: c.doorLabel!, coreId: c.id, coreTag: c.tag, issueId: issue.issueId, keyId: issue.keyId, keySymbol: issue.keySymbol, copyNumber: issue.copyNumber, how: c.how });
+  for (const { systemId } of systemIds) {
+    const system = await loadSystem(db, sealer, systemId);
+    const cores = await installedCores(db, systemId);
+    for (const { key, ...issue } of await copiesOut(db, sealer, system, { 'i.holder_id': holderId })) {
+      for (const c of exposedCores(system, cores, key)) {
+        if (c.doorId) doors.push({ doorId: c.doorId, doorLabel: c.doorLabel!, coreId: c.id, coreTag: c.tag, issueId: issue.issueId, keyId: issue.keyId, keySymbol: issue.keySymbol, copyNumber: issue.copyNumber, how: c.how });
+      }
     }
   }
   return { doors };

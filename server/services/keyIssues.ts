@@ -9,6 +9,7 @@ import { randomUUID } from 'node:crypto';
 import type { Knex } from 'knex';
 import type { CutList, KeyIssue, KeyIssueInput, KeyIssueQuery, KeyTransferInput, OutstandingKeys, TransferLink } from '../../shared/schemas/keyControl';
 import { badRequest, conflict, notFound } from '../errors';
+import { controlBitting } from './controlKeys';
 import { keyContext } from './keySystems';
 import type { Sealer } from './secrets';
 
@@ -16,7 +17,8 @@ export function issueQuery(db: Knex) {
   return db('key_issues as i')
     .join('key_holders as h', 'h.id', 'i.holder_id')
     .join('departments as d', 'd.id', 'h.department_id')
-    .join('keys as k', 'k.id', 'i.key_id')
+    .leftJoin('keys as k', 'k.id', 'i.key_id')
+    .leftJoin('control_keys as ck', 'ck.id', 'i.control_key_id')
     .leftJoin('users as u', 'u.id', 'i.issued_by')
     .leftJoin('key_requests as r', 'r.id', 'i.request_id')
     .leftJoin('key_issues as ti', 'ti.id', 'i.transferred_to')
@@ -29,9 +31,10 @@ export function issueQuery(db: Knex) {
       'h.name as holderName',
       'h.status as holderStatus',
       'd.name as department',
-      'i.key_id as keyId',
-      'k.symbol as keySymbol',
-      'k.key_system_id as keySystemId',
+      db.raw('coalesce(i.key_id, i.control_key_id) as "keyId"'),
+      db.raw('coalesce(k.symbol, ck.symbol) as "keySymbol"'),
+      db.raw('coalesce(k.key_system_id, ck.key_system_id) as "keySystemId"'),
+      db.raw('(i.control_key_id is not null) as control'),
       'i.copy_number as copyNumber',
       'i.request_id as requestId',
       'i.issued_at as issuedAt',
@@ -87,9 +90,9 @@ export function issueOf(r: IssueRow): KeyIssue & { holderStatus: IssueRow['holde
 const publicIssue = ({ holderStatus: _s, ...issue }: ReturnType<typeof issueOf>): KeyIssue => issue;
 
 export async function listIssues(db: Knex, f: KeyIssueQuery): Promise<KeyIssue[]> {
-  const q = issueQuery(db).orderBy([{ column: 'i.issued_at', order: 'desc' }, { column: 'k.symbol' }, { column: 'i.copy_number' }]);
+  const q = issueQuery(db).orderBy([{ column: 'i.issued_at', order: 'desc' }, { column: 'keySymbol' }, { column: 'i.copy_number' }]);
   if (f.holderId) q.where('i.holder_id', f.holderId);
-  if (f.keyId) q.where('i.key_id', f.keyId);
+  if (f.keyId) q.where((w) => void w.where('i.key_id', f.keyId!).orWhere('i.control_key_id', f.keyId!));
   if (f.status) q.where('i.status', f.status);
   return ((await q.limit(2000)) as IssueRow[]).map((r) => publicIssue(issueOf(r)));
 }
@@ -133,18 +136,26 @@ async function checkRequest(db: Knex, requestId: string | undefined, holderId: s
   return request.number as number;
 }
 
+/** The key a copy is cut from: a key of a system, or a system's control key (`column` says which). */
+async function keyToCut(db: Knex, keyId: string): Promise<{ id: string; symbol: string; status: string; column: 'key_id' | 'control_key_id' }> {
+  const key = await db('keys').where({ id: keyId }).first<{ id: string; symbol: string; status: string } | undefined>('id', 'status', 'symbol');
+  if (key) return { ...key, column: 'key_id' };
+  const control = await db('control_keys').where({ id: keyId }).first<{ id: string; symbol: string; status: string } | undefined>('id', 'status', 'symbol');
+  if (!control) throw badRequest('There is no key with that id.', [{ field: 'keyId', message: 'unknown key' }]);
+  return { ...control, column: 'control_key_id' };
+}
+
 export async function issueKey(db: Knex, input: KeyIssueInput, by: string): Promise<string> {
   await receivingHolder(db, input.holderId, 'issued to');
-  const key = await db('keys').where({ id: input.keyId }).first('id', 'status', 'symbol');
-  if (!key) throw badRequest('There is no key with that id.', [{ field: 'keyId', message: 'unknown key' }]);
+  const key = await keyToCut(db, input.keyId);
   if (key.status !== 'active') throw conflict(`Key ${key.symbol} is ${key.status}: no copies of it are issued.`, [{ field: 'keyId', message: `key ${key.status}` }]);
   await checkRequest(db, input.requestId, input.holderId, input.keyId);
   for (let attempt = 1; ; attempt++) {
     try {
       return await db.transaction(async (sp) => {
         const rows = (await sp.raw(
-          `insert into key_issues (holder_id, key_id, copy_number, request_id, issued_by, due_date, ack_name, ack_signature)
-           select ?, ?, coalesce(max(copy_number), 0) + 1, ?, ?, ?, ?, ? from key_issues where key_id = ?
+          `insert into key_issues (holder_id, ${key.column}, copy_number, request_id, issued_by, due_date, ack_name, ack_signature)
+           select ?, ?, coalesce(max(copy_number), 0) + 1, ?, ?, ?, ?, ? from key_issues where ${key.column} = ?
            returning id`,
           [input.holderId, input.keyId, input.requestId ?? null, by, input.dueDate ?? null, input.acknowledgement.name, input.acknowledgement.signature ?? null, input.keyId],
         )).rows as { id: string }[];
@@ -171,18 +182,19 @@ export async function returnKey(db: Knex, id: string, by: string): Promise<void>
  * active, a key no longer active (its copies come back instead).
  */
 export async function transferKey(db: Knex, id: string, input: KeyTransferInput, by: string): Promise<{ id: string; from: string; copy: string; request: string | null }> {
-  const old = await db('key_issues as i').join('keys as k', 'k.id', 'i.key_id').join('key_holders as h', 'h.id', 'i.holder_id').where('i.id', id).forUpdate('i').first<{ status: string; holderId: string; holderName: string; keyId: string; symbol: string; keyStatus: string; copy: number } | undefined>('i.status', 'i.holder_id as holderId', 'h.name as holderName', 'i.key_id as keyId', 'k.symbol', 'k.status as keyStatus', 'i.copy_number as copy');
+  const old = await db('key_issues as i').join('key_holders as h', 'h.id', 'i.holder_id').where('i.id', id).forUpdate('i').first<{ status: string; holderId: string; holderName: string; keyId: string | null; controlKeyId: string | null; copy: number } | undefined>('i.status', 'i.holder_id as holderId', 'h.name as holderName', 'i.key_id as keyId', 'i.control_key_id as controlKeyId', 'i.copy_number as copy');
   if (!old) throw notFound('That key issue');
-  const copy = `${old.symbol} #${old.copy}`;
+  const key = await keyToCut(db, (old.keyId ?? old.controlKeyId)!);
+  const copy = `${key.symbol} #${old.copy}`;
   if (old.status !== 'out') throw conflict(`${copy} is ${old.status}, not out: only a copy that is out can pass to another holder.`, [{ field: 'status', message: old.status }]);
   if (old.holderId === input.holderId) throw badRequest(`${old.holderName} holds ${copy} already: choose the person it passes to.`, [{ field: 'holderId', message: 'the same holder' }]);
   await receivingHolder(db, input.holderId, 'passed to');
-  if (old.keyStatus !== 'active') throw conflict(`Key ${old.symbol} is ${old.keyStatus}: take ${copy} back instead of passing it on.`, [{ field: 'keyId', message: `key ${old.keyStatus}` }]);
-  const request = await checkRequest(db, input.requestId, input.holderId, old.keyId);
+  if (key.status !== 'active') throw conflict(`Key ${key.symbol} is ${key.status}: take ${copy} back instead of passing it on.`, [{ field: 'keyId', message: `key ${key.status}` }]);
+  const request = await checkRequest(db, input.requestId, input.holderId, key.id);
   // Closed first (the link is checked at commit): the live record of a copy is unique, and the new one takes its copy number.
   const next = randomUUID();
   await db('key_issues').where({ id }).update({ status: 'transferred', transferred_at: db.fn.now(), transferred_to: next });
-  await db('key_issues').insert({ id: next, holder_id: input.holderId, key_id: old.keyId, copy_number: old.copy, request_id: input.requestId ?? null, issued_by: by, due_date: input.dueDate ?? null, ack_name: input.acknowledgement.name, ack_signature: input.acknowledgement.signature ?? null });
+  await db('key_issues').insert({ id: next, holder_id: input.holderId, [key.column]: key.id, copy_number: old.copy, request_id: input.requestId ?? null, issued_by: by, due_date: input.dueDate ?? null, ack_name: input.acknowledgement.name, ack_signature: input.acknowledgement.signature ?? null });
   return { id: next, from: old.holderId, copy, request: request === null ? null : `#${request}` };
 }
 
@@ -193,21 +205,26 @@ export async function outstandingKeys(db: Knex): Promise<OutstandingKeys['issues
     .where((w) => {
       w.where('i.due_date', '<', db.raw('current_date')).orWhereIn('h.status', ['leaving', 'left']);
     })
-    .orderBy([{ column: 'h.name' }, { column: 'k.symbol' }, { column: 'i.copy_number' }])) as IssueRow[];
+    .orderBy([{ column: 'h.name' }, { column: 'keySymbol' }, { column: 'i.copy_number' }])) as IssueRow[];
   return rows.map((r) => {
     const issue = issueOf(r);
     return { ...issue, reason: r.holderStatus === 'active' ? ('overdue' as const) : r.holderStatus };
   });
 }
 
-/** Per key, the copies to cut with the bitting (restricted: the route allows and audits). */
+/** Per key, the copies to cut with the bitting (restricted: the route allows and audits); a control key's copies too. */
 export async function cutList(db: Knex, sealer: Sealer, issueIds: string[]): Promise<CutList['cutList']> {
-  const rows = await db('key_issues as i').join('keys as k', 'k.id', 'i.key_id').whereIn('i.id', issueIds).orderBy([{ column: 'k.symbol' }, { column: 'i.copy_number' }]).select<{ id: string; keyId: string; symbol: string; bitting_enc: string; copy_number: number }[]>('i.id', 'k.id as keyId', 'k.symbol', 'k.bitting_enc', 'i.copy_number');
+  const rows = await db('key_issues as i')
+    .leftJoin('keys as k', 'k.id', 'i.key_id')
+    .leftJoin('control_keys as ck', 'ck.id', 'i.control_key_id')
+    .whereIn('i.id', issueIds)
+    .orderBy([{ column: 'symbol' }, { column: 'i.copy_number' }])
+    .select<{ id: string; keyId: string; symbol: string; bitting_enc: string | null; control: boolean; copy_number: number }[]>('i.id', db.raw('coalesce(k.id, ck.id) as "keyId"'), db.raw('coalesce(k.symbol, ck.symbol) as symbol'), 'k.bitting_enc', db.raw('(i.control_key_id is not null) as control'), 'i.copy_number');
   const missing = issueIds.filter((id) => !rows.some((r) => r.id === id));
   if (missing.length) throw badRequest(`No key issue ${missing[0]}.`, [{ field: 'issueIds', message: `unknown issue ${missing[0]}` }]);
   const byKey = new Map<string, CutList['cutList'][number]>();
   for (const r of rows) {
-    const line = byKey.get(r.keyId) ?? { keyId: r.keyId, keySymbol: r.symbol, bitting: sealer.open(r.bitting_enc, keyContext(r.keyId)), copyNumbers: [], quantity: 0 };
+    const line = byKey.get(r.keyId) ?? { keyId: r.keyId, keySymbol: r.symbol, bitting: r.control ? await controlBitting(db, sealer, r.keyId) : sealer.open(r.bitting_enc!, keyContext(r.keyId)), copyNumbers: [], quantity: 0 };
     line.copyNumbers.push(r.copy_number);
     line.quantity++;
     byKey.set(r.keyId, line);

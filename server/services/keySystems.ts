@@ -15,6 +15,10 @@ import { getProfile } from './profiles';
 
 export const controlContext = (systemId: string) => `key-system-control:${systemId}`;
 export const keyContext = (keyId: string) => `key:${keyId}`;
+/** A replaced control key's own sealed bitting (services/controlKeys.ts). */
+export const controlKeyContext = (id: string) => `control-key:${id}`;
+/** The symbol a system's first control key is stamped with; later ones are CK2, CK3, ... */
+export const CONTROL_SYMBOL = 'CK';
 
 export interface SystemKey {
   id: string;
@@ -32,6 +36,8 @@ export interface LoadedSystem {
   name: string;
   profile: Profile;
   control: string;
+  /** Bittings of control keys replaced after a loss, by id, while cores built for them are installed (`cores.control_key_id`). */
+  replacedControls: Record<string, string>;
   keys: SystemKey[];
 }
 
@@ -89,11 +95,13 @@ export async function loadSystem(db: Knex, sealer: Sealer, systemId: string): Pr
   if (!row) throw notFound('That key system');
   const profile = await getProfile(db, row.profile_id);
   const keys = await db('keys').where({ key_system_id: systemId }).orderBy([{ column: 'level' }, { column: 'symbol' }]);
+  const replaced = await db('control_keys').where({ key_system_id: systemId, status: 'replaced' }).select<{ id: string; bitting_enc: string }[]>('id', 'bitting_enc');
   return {
     id: row.id,
     name: row.name,
     profile,
     control: sealer.open(row.control_enc, controlContext(row.id)),
+    replacedControls: Object.fromEntries(replaced.map((r) => [r.id, sealer.open(r.bitting_enc, controlKeyContext(r.id))])),
     keys: keys.map((k) => ({ ...keyOf(k), bitting: sealer.open(k.bitting_enc, keyContext(k.id)) })),
   };
 }
@@ -124,6 +132,8 @@ export async function createSystem(db: Knex, sealer: Sealer, input: KeySystemCre
   const id = randomUUID();
   await db.transaction(async (trx) => {
     await trx('key_systems').insert({ id, name: input.name, profile_id: profile.id, control_enc: sealer.seal(control, controlContext(id)), notes: input.notes ?? null });
+    // Its control key on record, so copies of it can be issued and tracked like any key's.
+    await trx('control_keys').insert({ key_system_id: id, symbol: CONTROL_SYMBOL });
     if (input.topMaster) await addKeys(trx, sealer, id, [{ ...input.topMaster, parentId: null, status: 'active', crossKeyed: false }]);
   });
   return id;
@@ -140,7 +150,12 @@ export async function updateSystem(db: Knex, sealer: Sealer, id: string, input: 
   if (input.name !== undefined) patch.name = input.name;
   if (input.notes !== undefined) patch.notes = input.notes;
   if (input.profileId !== undefined) patch.profile_id = profile.id;
-  if (input.control !== undefined) patch.control_enc = sealer.seal(checkBitting(profile, input.control, 'control'), controlContext(id));
+  if (input.control !== undefined) {
+    // Copies of the control key are stamped with its symbol: a new bitting under the same symbol would leave them unaccounted for.
+    const out = await db('key_issues as i').join('control_keys as c', 'c.id', 'i.control_key_id').where({ 'c.key_system_id': id, 'c.status': 'active', 'i.status': 'out' }).first<{ symbol: string } | undefined>('c.symbol');
+    if (out) throw conflict(`Copies of control key ${out.symbol} are out: take them back first, or report one lost and make its rekey, which puts a new control key in place.`, [{ field: 'control', message: 'control key copies out' }]);
+    patch.control_enc = sealer.seal(checkBitting(profile, input.control, 'control'), controlContext(id));
+  }
   await db('key_systems').where({ id }).update(patch);
 }
 

@@ -29,7 +29,7 @@ async function supervisorsFor(db: Knex, workOrderId: string | null): Promise<str
 async function deliver({ db, mailer, config }: Deps, kind: NotificationKind, refId: string): Promise<void> {
   if (kind === 'key-due') {
     // Only symbol and copy number: a reminder never carries a bitting.
-    const i = await db('key_issues as i').join('key_holders as h', 'h.id', 'i.holder_id').join('keys as k', 'k.id', 'i.key_id').where('i.id', refId).first('i.status', 'i.copy_number', db.raw(`to_char(i.due_date, 'YYYY-MM-DD') as due`), 'h.name', 'h.email', 'k.symbol');
+    const i = await db('key_issues as i').join('key_holders as h', 'h.id', 'i.holder_id').leftJoin('keys as k', 'k.id', 'i.key_id').leftJoin('control_keys as ck', 'ck.id', 'i.control_key_id').where('i.id', refId).first('i.status', 'i.copy_number', db.raw(`to_char(i.due_date, 'YYYY-MM-DD') as due`), 'h.name', 'h.email', db.raw('coalesce(k.symbol, ck.symbol) as symbol'));
     if (i?.status === 'out' && i.email) await mailer.send({ to: i.email, ...mails.keyDue({ holder: i.name, symbol: i.symbol, copy: i.copy_number, due: i.due }) });
     return;
   }

@@ -20,10 +20,11 @@ import { exposedCores, installedCores } from './keyExposure';
 import { addKeys, loadSystem, placementSystemOf, updateKey, type LoadedSystem, type SystemKey } from './keySystems';
 import type { Sealer } from './secrets';
 import { systemAuditInputFor, levelFor } from './systemAudit';
+import { controlPlan, controlWorkOrder } from './controlRekey';
 import { createWorkOrder } from './workOrders';
 
 /** An installed core the lost key is pinned into, with what its rebuild is planned from: its door's key and its cross key. */
-type InstalledCore = Awaited<ReturnType<typeof installedCores>>[number] & { doorKeyId: string | null; crossKeyId: string | null };
+export type InstalledCore = Awaited<ReturnType<typeof installedCores>>[number] & { doorKeyId: string | null; crossKeyId: string | null };
 /** A key the recipe adds: under an existing key (parentId) or under the new master (parentId 'new'). */
 interface NewKey { ref: string; symbol: string; level: SystemKey['level']; parentId: string; bitting: string; replaces: string | null }
 /** What a choice does to the key system; the work order follows from it. */
@@ -149,12 +150,19 @@ async function masterChoices(db: Knex, sealer: Sealer, system: LoadedSystem, key
   ];
 }
 
-const planCore = (c: { id: string; tag: string; doorId: string | null; doorLabel: string | null }): PlanCore => ({ coreId: c.id, tag: c.tag, doorId: c.doorId, doorLabel: c.doorLabel });
+/** Each core with what its rebuild is planned from: its door's key and its cross key. */
+export async function withRebuildKeys(db: Knex, pinned: Awaited<ReturnType<typeof installedCores>>): Promise<InstalledCore[]> {
+  const doorKeys = new Map((await db('doors').whereIn('id', pinned.flatMap((c) => (c.doorId ? [c.doorId] : []))).select<{ id: string; key_id: string | null }[]>('id', 'key_id')).map((d) => [d.id, d.key_id]));
+  const cross = new Map((await db('core_keys').whereIn('core_id', pinned.map((c) => c.id)).where({ cross_keyed: true }).select<{ core_id: string; key_id: string }[]>('core_id', 'key_id')).map((l) => [l.core_id, l.key_id]));
+  return pinned.map((c) => ({ ...c, doorKeyId: (c.doorId && doorKeys.get(c.doorId)) || null, crossKeyId: cross.get(c.id) ?? null }));
+}
 
-async function loadReport(db: Knex, reportId: string) {
-  const r = await db('key_reports as r').join('key_issues as i', 'i.id', 'r.issue_id').join('keys as k', 'k.id', 'i.key_id').where('r.id', reportId).first('r.id', 'r.issue_id', 'r.status', 'r.work_order_id', 'r.rekey_option', 'k.id as keyId', 'k.key_system_id as systemId');
+export const planCore = (c: { id: string; tag: string; doorId: string | null; doorLabel: string | null }): PlanCore => ({ coreId: c.id, tag: c.tag, doorId: c.doorId, doorLabel: c.doorLabel });
+
+export async function loadReport(db: Knex, reportId: string) {
+  const r = await db('key_reports as r').join('key_issues as i', 'i.id', 'r.issue_id').leftJoin('keys as k', 'k.id', 'i.key_id').leftJoin('control_keys as ck', 'ck.id', 'i.control_key_id').where('r.id', reportId).first('r.id', 'r.issue_id', 'r.status', 'r.work_order_id', 'r.rekey_option', 'r.new_control_key_id', db.raw('coalesce(i.key_id, i.control_key_id) as "keyId"'), db.raw('coalesce(k.key_system_id, ck.key_system_id) as "systemId"'), db.raw('(i.control_key_id is not null) as control'));
   if (!r) throw notFound('That key report');
-  return r as { id: string; issue_id: string; status: string; work_order_id: string | null; rekey_option: RekeyOption | null; keyId: string; systemId: string };
+  return r as { id: string; issue_id: string; status: string; work_order_id: string | null; rekey_option: RekeyOption | null; new_control_key_id: string | null; keyId: string; systemId: string; control: boolean };
 }
 
 /** The plan, with each choice's recipe kept server-side (its bittings are never answered). */
@@ -175,9 +183,7 @@ async function computePlan(db: Knex, sealer: Sealer, reportId: string): Promise<
     }).orderBy(['k.symbol', 'i.copy_number']).select<RekeyPlan['copiesToReissue']>('i.id as issueId', 'h.id as holderId', 'h.name as holderName', 'k.symbol as keySymbol', 'i.copy_number as copyNumber');
   const intended = new Set(exposed.filter((c) => c.how === 'intended').map((c) => c.id));
   const pinned = all.filter((c) => intended.has(c.id));
-  const doorKeys = new Map((await db('doors').whereIn('id', pinned.flatMap((c) => (c.doorId ? [c.doorId] : []))).select<{ id: string; key_id: string | null }[]>('id', 'key_id')).map((d) => [d.id, d.key_id]));
-  const cross = new Map((await db('core_keys').whereIn('core_id', pinned.map((c) => c.id)).where({ cross_keyed: true }).select<{ core_id: string; key_id: string }[]>('core_id', 'key_id')).map((l) => [l.core_id, l.key_id]));
-  const cores: InstalledCore[] = pinned.map((c) => ({ ...c, doorKeyId: (c.doorId && doorKeys.get(c.doorId)) || null, crossKeyId: cross.get(c.id) ?? null }));
+  const cores = await withRebuildKeys(db, pinned);
   const coresToRepin = exposed.filter((c) => c.how === 'intended').map((c) => planCore(c)).sort((a, b) => naturalCompare(a.doorLabel ?? a.tag, b.doorLabel ?? b.tag));
   const incidentalCores = exposed.filter((c) => c.how === 'incidental').map((c) => planCore(c));
   const ownCopies = copies.filter((c) => c.keySymbol === key.symbol).length;
@@ -195,7 +201,7 @@ async function computePlan(db: Knex, sealer: Sealer, reportId: string): Promise<
   const n = coresToRepin.length;
   const coreWords = (k: number) => `${k} core${k === 1 ? '' : 's'}`;
   const keyWords = (k: number) => `${k} key${k === 1 ? '' : 's'}`;
-  const words: Record<RekeyOption, [string, number]> = {
+  const words: Record<Exclude<RekeyOption, 'new-control-key'>, [string, number]> = {
     'new-change-key': [`Pin the ${coreWords(n)} of ${key.symbol} for a new change key under ${parent?.symbol ?? 'its master'} and re-issue ${keyWords(ownCopies)} in place of ${key.symbol}'s copies.`, ownCopies],
     're-master': [`Give the ${coreWords(n)} under ${key.symbol} a new master (new master wafers; change keys unchanged) and re-issue only the ${keyWords(ownCopies)} of ${key.symbol}.`, ownCopies],
     'rekey-under-master': [`Rekey every core under ${key.symbol} (new master and new change keys) and re-issue every copy of ${key.symbol} and the keys under it (${keyWords(copies.length)}).`, copies.length],
@@ -209,7 +215,7 @@ async function computePlan(db: Knex, sealer: Sealer, reportId: string): Promise<
     coresToRepin,
     incidentalCores,
     copiesToReissue: copies,
-    choices: choices.map((c) => ({ option: c.option, description: words[c.option][0], coresToBuild: n, keysToReissue: words[c.option][1], blocked: c.blocked })),
+    choices: choices.map((c) => ({ option: c.option, description: words[c.option as keyof typeof words][0], coresToBuild: n, keysToReissue: words[c.option as keyof typeof words][1], blocked: c.blocked })),
     // A cancelled work order is as good as none: the plan offers the step again (replanCancelled).
     workOrderId: report.work_order_id && (await db('work_orders').where({ id: report.work_order_id }).first('status'))?.status !== 'cancelled' ? report.work_order_id : null,
     chosen: report.rekey_option,
@@ -218,6 +224,8 @@ async function computePlan(db: Knex, sealer: Sealer, reportId: string): Promise<
 }
 
 export async function rekeyPlan(db: Knex, sealer: Sealer, reportId: string): Promise<RekeyPlan> {
+  const report = await loadReport(db, reportId);
+  if (report.control) return (await controlPlan(db, sealer, report)).plan;
   return (await computePlan(db, sealer, reportId)).plan;
 }
 
@@ -247,6 +255,8 @@ export async function planToWorkOrder(db: Knex, sealer: Sealer, reportId: string
   const report = await db('key_reports').where({ id: reportId }).forUpdate().first('status', 'work_order_id', 'new_keys');
   if (!report) throw notFound('That key report');
   if (report.status !== 'open') throw conflict('This report is closed.', [{ field: 'reportId', message: 'closed' }]);
+  const loaded = await loadReport(db, reportId);
+  if (loaded.control) return controlWorkOrder(db, sealer, loaded, input, by);
   if (report.work_order_id) {
     const wo = await db('work_orders').where({ id: report.work_order_id }).first('status', 'number');
     if (wo?.status !== 'cancelled') throw conflict(`This report has its work order already (#${wo?.number}).`, [{ field: 'reportId', message: 'work order exists' }]);
@@ -271,7 +281,7 @@ export async function planToWorkOrder(db: Knex, sealer: Sealer, reportId: string
 }
 
 /** The work order of a rekey: each core rebuilt for its door's key (or that key's new key), keeping a cross key it had. */
-async function rekeyWorkOrder(db: Knex, sealer: Sealer, systemId: string, cores: InstalledCore[], newOf: Map<string, string>, title: string, lostSymbol: string, input: RekeyWorkOrderInput, by: string) {
+export async function rekeyWorkOrder(db: Knex, sealer: Sealer, systemId: string, cores: InstalledCore[], newOf: Map<string, string>, title: string, lostSymbol: string, input: RekeyWorkOrderInput, by: string) {
   const doors: WorkOrderDoor[] = cores.flatMap((c) => {
     if (!c.doorId || !c.doorKeyId) return [];
     const crossKeyId = c.crossKeyId ? (newOf.get(c.crossKeyId) ?? c.crossKeyId) : null;

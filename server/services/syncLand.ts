@@ -3,11 +3,13 @@
  * (INSERT ... ON CONFLICT DO NOTHING), completions before installs so a core built and installed
  * offline syncs in one go. A core's state follows its records' own times, not their arrival
  * (reliability.md T5); an install follows the pinning (T4: installRules.ts), and the install that
- * finishes a lost key's rekey closes its report in the same transaction (keyCloseout.ts).
+ * finishes a lost key's rekey closes its report in the same transaction (keyCloseout.ts), and a lost
+ * control key's rekey likewise (controlRekey.ts: its reports are not keyCloseout's, which are keys').
  */
 import type { Knex } from 'knex';
 import type { CompletionRecord, InstallRecord } from '../../shared/schemas/sync';
 import { checkInstall } from './installRules';
+import { closeControlRekeys } from './controlRekey';
 import { closeReportsAfterInstalls } from './keyCloseout';
 import { sealPinSizes } from './pinSizes';
 import type { Sealer } from './secrets';
@@ -134,6 +136,7 @@ export async function landChecked(trx: Knex.Transaction, sealer: Sealer, input: 
   // A lost key's rekey finishes with its last install: the old keys retire and the report closes (keyCloseout.ts).
   const installed = input.installs.filter((i) => out.accepted.has(i.record.clientId)).map((i) => i.record.coreId);
   await closeReportsAfterInstalls(trx, sealer, installed, { id: input.user.id, email: input.user.email ?? null });
+  await closeControlRekeys(trx, sealer, installed, { id: input.user.id, email: input.user.email ?? null });
   // Work orders whose every core is built are done.
   const wos = [...new Set(input.completions.map((i) => i.record.workOrderId))];
   if (wos.length) {

@@ -77,6 +77,15 @@ export type HolderList = z.infer<typeof HolderList>;
 export const IssueStatus = z.enum(['out', 'returned', 'lost', 'stolen', 'transferred']);
 export type IssueStatus = z.infer<typeof IssueStatus>;
 
+/**
+ * A system's control key as key control tracks it (never its bitting): `active` is the system's control key
+ * now; `replaced` after a loss, while cores built for it are still installed; then `retired`.
+ */
+export const ControlKey = z.object({ id: Id, keySystemId: Id, symbol: z.string(), status: z.enum(['active', 'replaced', 'retired']), copiesOut: z.number() });
+export type ControlKey = z.infer<typeof ControlKey>;
+export const ControlKeyList = z.object({ controlKeys: z.array(ControlKey) });
+export type ControlKeyList = z.infer<typeof ControlKeyList>;
+
 /** The other side of a transfer: the record the copy passed to, or came from, and its holder. */
 export const TransferLink = z.object({ issueId: Id, holderId: Id, holderName: z.string() });
 export type TransferLink = z.infer<typeof TransferLink>;
@@ -90,6 +99,8 @@ export const KeyIssue = z.object({
   keyId: Id,
   keySymbol: z.string(),
   keySystemId: Id,
+  /** A copy of the system's control key (`keyId` is then the control key's id): it removes cores. */
+  control: z.boolean(),
   copyNumber: z.number().int().min(1),
   requestId: Id.nullable(),
   issuedAt: z.string(),
@@ -134,6 +145,7 @@ export const Acknowledgement = z.strictObject({
 
 export const KeyIssueInput = z.strictObject({
   holderId: Id,
+  /** A key, or a system's control key (supervisors and administrators only, as every issue). */
   keyId: Id,
   requestId: Id.optional(),
   dueDate: IsoDate.optional(),

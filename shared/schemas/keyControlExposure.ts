@@ -18,7 +18,7 @@ export type ExposedHolder = z.infer<typeof ExposedHolder>;
 
 export const Exposure = z.object({
   keySystemId: Id,
-  /** Null for the system's control key (it is no stored key). */
+  /** The key, or the control key on record; null for the system's control key read without a record (control-exposure). */
   keyId: Id.nullable(),
   keySymbol: z.string(),
   cores: z.array(ExposedCore),
@@ -53,6 +53,8 @@ export const KeyReport = z.object({
   holderName: z.string(),
   keyId: Id,
   keySymbol: z.string(),
+  /** A copy of the system's control key: its exposure is every core built for it. */
+  control: z.boolean(),
   copyNumber: z.number(),
   kind: z.enum(['lost', 'stolen']),
   note: z.string().nullable(),

@@ -10,7 +10,8 @@ import { KeySymbol } from './records';
 export const PlanCore = z.object({ coreId: Id, tag: z.string(), doorId: Id.nullable(), doorLabel: z.string().nullable() });
 export type PlanCore = z.infer<typeof PlanCore>;
 
-export const RekeyOption = z.enum(['new-change-key', 're-master', 'rekey-under-master'], { error: 'option is new-change-key, re-master or rekey-under-master' });
+/** `new-control-key`: a lost control key; a new control key for the system and every core it removes rebuilt for it. */
+export const RekeyOption = z.enum(['new-change-key', 're-master', 'rekey-under-master', 'new-control-key'], { error: 'option is new-change-key, re-master, rekey-under-master or new-control-key' });
 export type RekeyOption = z.infer<typeof RekeyOption>;
 
 export const RekeyChoice = z.object({
@@ -25,7 +26,8 @@ export type RekeyChoice = z.infer<typeof RekeyChoice>;
 
 export const RekeyPlan = z.object({
   reportId: Id,
-  lostKey: z.object({ id: Id, symbol: z.string(), level: z.enum(['ggm', 'gm', 'master', 'change']) }),
+  /** `control`: the lost key is a control key of the system (its id is the control key's record). */
+  lostKey: z.object({ id: Id, symbol: z.string(), level: z.enum(['ggm', 'gm', 'master', 'change', 'control']) }),
   /** The symbol the lost key's replacement would take (the new change key, or the new master of the first choice that can be made); null when none can be made. */
   newKeySymbol: z.string().nullable(),
   /** Unused keys of the progression that pass the system audit (the first is proposed). */

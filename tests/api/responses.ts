@@ -17,7 +17,7 @@ import { ApiErrorBody } from '../../shared/schemas/errors';
 import { ImportResult } from '../../shared/schemas/imports';
 import { InstallMismatchList, InstallReview } from '../../shared/schemas/installs';
 import { KeyIds, KeyList, KeyOperatesList, KeyReplacement, KeySystemAnswer, KeySystemList } from '../../shared/schemas/keySystems';
-import { CutList, DepartmentAnswer, DepartmentList, HolderAnswer, HolderList, KeyIssueAnswer, KeyIssueList, OutstandingKeys } from '../../shared/schemas/keyControl';
+import { ControlKeyList, CutList, DepartmentAnswer, DepartmentList, HolderAnswer, HolderList, KeyIssueAnswer, KeyIssueList, OutstandingKeys } from '../../shared/schemas/keyControl';
 import { DoorAccess, ExposureAnswer, HolderAccess, KeyReportAnswer, KeyReportList } from '../../shared/schemas/keyControlExposure';
 import { KeyAuditLinkAnswer, KeyAuditAnswer, KeyAuditList } from '../../shared/schemas/keyControlKeyAudits';
 import { RekeyPlanAnswer, RekeyWorkOrderDone } from '../../shared/schemas/keyControlRekey';
@@ -52,6 +52,7 @@ export const answers: Record<string, Answer> = {
   'GET /api/holders/:id': json(HolderAnswer),
   'PATCH /api/holders/:id': json(HolderAnswer),
   'GET /api/holders/:id/access': json(HolderAccess),
+  'GET /api/key-systems/:id/control-keys': json(ControlKeyList),
   'GET /api/key-issues': json(KeyIssueList),
   'POST /api/key-issues': json(KeyIssueAnswer),
   'GET /api/key-issues/outstanding': json(OutstandingKeys),

@@ -102,6 +102,7 @@ const matrix: Entry[] = [
   { method: 'GET', route: '/api/holders/:id', path: `/api/holders/${randomUUID()}`, allow: SUP, ok: 404 },
   { method: 'PATCH', route: '/api/holders/:id', path: `/api/holders/${randomUUID()}`, allow: SUP, ok: 404, body: {} },
   { method: 'GET', route: '/api/holders/:id/access', path: `/api/holders/${randomUUID()}/access`, allow: SUP, ok: 404 },
+  { method: 'GET', route: '/api/key-systems/:id/control-keys', path: '/api/key-systems/{ks}/control-keys', allow: SUP, ok: 200 },
   { method: 'GET', route: '/api/key-issues', path: '/api/key-issues', allow: SUP, ok: 200 },
   { method: 'POST', route: '/api/key-issues', path: '/api/key-issues', allow: SUP, ok: 400, body: {} },
   { method: 'GET', route: '/api/key-issues/outstanding', path: '/api/key-issues/outstanding', allow: SUP, ok: 200 },
