@@ -22,6 +22,7 @@ import { KEY_AUDIT_LINK_DAYS, type KeyAuditConfirm, type KeyAuditLinkAnswer, typ
 import { naturalCompare } from '../../shared/words';
 import type { Config } from '../config';
 import { badRequest, conflict, HttpError, notFound } from '../errors';
+import { joinHolder } from './keyHolders';
 import { reportKey } from './keyReports';
 import { mails, type Mail, type Mailer } from './mail';
 import type { Sealer } from './secrets';
@@ -63,10 +64,7 @@ export async function startKeyAudit(db: Knex, input: KeyAuditInput, by: string):
 interface CopyRow { keyAuditId: string; holderId: string; name: string; department: string; email: string | null; answeredAt: Date | null; mailedAt: Date | null; reminders: number; issueId: string; keySymbol: string; copyNumber: number; answer: 'held' | 'missing' | null; reportId: string | null }
 
 function copiesQuery(db: Knex) {
-  return db('key_campaign_copies as cc')
-    .join('key_campaign_holders as ch', 'ch.id', 'cc.campaign_holder_id')
-    .join('key_holders as h', 'h.id', 'ch.holder_id')
-    .join('departments as d', 'd.id', 'h.department_id')
+  return joinHolder(db('key_campaign_copies as cc').join('key_campaign_holders as ch', 'ch.id', 'cc.campaign_holder_id'), 'ch.holder_id')
     .join('key_issues as i', 'i.id', 'cc.issue_id')
     .leftJoin('keys as k', 'k.id', 'i.key_id').leftJoin('control_keys as ck', 'ck.id', 'i.control_key_id')
     .select('ch.campaign_id as keyAuditId', 'h.id as holderId', 'h.name', 'd.name as department', 'h.email', 'ch.answered_at as answeredAt', 'ch.mailed_at as mailedAt', 'ch.reminders', 'i.id as issueId', db.raw('coalesce(k.symbol, ck.symbol) as "keySymbol"'), 'i.copy_number as copyNumber', 'cc.answer', 'cc.report_id as reportId');
