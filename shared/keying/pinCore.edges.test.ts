@@ -140,3 +140,15 @@ describe('no state carries over from one chart to the next (common practice for 
     expect(later.chambers.map((ch) => ch.chamber)).toEqual([1, 2, 3, 4, 5, 6]);
   });
 });
+
+describe('a build-up thinner than the profile allows (keying primer: smallest wafer)', () => {
+  test('one unit: the chart still shows the 1-unit build-up, and the message says "1 unit" and the control cut that fixes it', () => {
+    // Chamber 1: depth 9 under control 0, so 0 + 10 − 9 = 1 unit; 9 + 2 − 10 = 1 is the shallowest control cut that leaves 2.
+    const pinning = pinCore(sfic6, { operating: ['999999'], control: '099999' });
+    expect(pinning.chambers[0]?.buildUp).toEqual([1]);
+    expect(pinning.issues.filter((i) => i.code === 'wafer-too-thin')).toStrictEqual([{
+      code: 'wafer-too-thin', severity: 'error', chamber: 1,
+      message: 'Chamber 1: the build-up would be 1 unit (control 0 + sleeve 10 − deepest cut 9), thinner than the 2-unit minimum — choose a control cut of 1 or deeper in chamber 1, or a shallower deepest operating cut.',
+    }]);
+  });
+});
