@@ -87,3 +87,39 @@ describe('a master chain that loops', () => {
     expect(checkKeyPlacement(sfic6, loop, { id: 'x', bitting: '444446', parentId: 'y' }).map((p) => p.code)).not.toContain('placement-equals-master');
   });
 });
+
+describe('placement: the message names the right key, worked out by hand', () => {
+  test('a bitting equal to its master and to a sibling cut like the master: the master is named', () => {
+    // A record error of our own: S hangs under AA and is cut like AA; a new key under AA cut alike names AA.
+    const withTwin: PlacementSystem = { ...system, keys: [...system.keys, { id: 's', symbol: 'S', bitting: '244444', parentId: 'aa' }] };
+    const [same] = checkKeyPlacement(sfic6, withTwin, { bitting: '244444', parentId: 'aa' }).filter((p) => p.code === 'placement-equals-master');
+    expect(same?.message).toBe('The bitting is the same as its master AA: two keys of one system never share a bitting. Progress at least one more position.');
+  });
+
+  test('two unrelated keys cut alike: the first of them in the system is named', () => {
+    const twins: PlacementSystem = {
+      ...system,
+      keys: [...system.keys, { id: 'x1', symbol: 'X1', bitting: '464646', parentId: 'b' }, { id: 'x2', symbol: 'X2', bitting: '464646', parentId: 'b' }],
+    };
+    const [same] = checkKeyPlacement(sfic6, twins, { bitting: '464646', parentId: 'a' });
+    expect(same?.message).toBe('The bitting is the same as key X1: two keys of one system never share a bitting. Progress at least one more position.');
+  });
+
+  test('MACS: the difference of cuts 1 and 9 is 8', () => {
+    const tight: Profile = { ...sfic6, maxAdjacentCut: 7 };
+    const problems = checkKeyPlacement(tight, system, { bitting: '193579', parentId: null });
+    expect(problems.filter((p) => p.code === 'macs-exceeded').map((p) => p.message)).toEqual([
+      'Chambers 1 and 2: cuts 1 and 9 differ by 8, more than the maximum adjacent cut of 7; the key cannot be cut. Change one of the two cuts.',
+    ]);
+  });
+
+  test('a key at the top with no named top master: no top master, so no parity to break', () => {
+    expect(checkKeyPlacement(sfic6, system, { bitting: '135797', parentId: null })).toEqual([]);
+  });
+
+  test('a master re-hung under its own change key: the chain stops at the key itself', () => {
+    // AA moved under AA1 (a loop). The chain above is AA1 alone: nothing is held constant and
+    // AA1 is the top of that chain, so a new cut of AA that keeps AA1's parity is accepted.
+    expect(checkKeyPlacement(sfic6, system, { id: 'aa', bitting: '042466', parentId: 'aa1' })).toEqual([]);
+  });
+});
