@@ -112,7 +112,7 @@ export async function controlPlan(db: Knex, sealer: Sealer, report: Report): Pro
     copiesToReissue: copies.map((c) => ({ ...c, keySymbol: control.symbol })),
     choices: [{
       option: 'new-control-key',
-      description: `Cut a new control key ${newSymbol} for ${system.name}, rebuild every one of its ${n} installed core${n === 1 ? '' : 's'} for it (each for its door's keys, as now), and issue ${newSymbol} in place of the ${copies.length} cop${copies.length === 1 ? 'y' : 'ies'} of ${control.symbol} on record, to those who must carry one.`,
+      description: `Cut a new control key ${newSymbol} for ${system.name}, rebuild every one of its ${n} installed core${n === 1 ? '' : 's'} for it (each for its door's keys, as now), and re-issue ${newSymbol} in place of the ${copies.length} cop${copies.length === 1 ? 'y' : 'ies'} of ${control.symbol} on record.`,
       coresToBuild: n,
       keysToReissue: copies.length,
       blocked,
@@ -162,7 +162,8 @@ export async function controlWorkOrder(db: Knex, sealer: Sealer, report: Report,
  * keyCloseout.ts, whose reports are those of keys): the same two steps. A replaced control key no installed
  * core is built for any more is retired (`control-key.retired`; its report `rebuilt_at`). The report closes
  * when the engine finds the lost control key removes and turns no installed core (each read with the control
- * key it was built for); until then it keeps the cores that still do (`remaining`). Nothing happens twice: a
+ * key it was built for); until then it keeps the cores that still do (`remaining`). At retirement every holder
+ * of a copy of it (out, or the reported one) gets a re-issue task naming the new control key. Nothing happens twice: a
  * retired key and a closed report are not touched again, and an event is written only when something changes.
  */
 export async function closeControlRekeys(trx: Knex.Transaction, sealer: Sealer, coreIds: string[], actor: Actor): Promise<string[]> {
@@ -187,18 +188,22 @@ export async function closeControlRekeys(trx: Knex.Transaction, sealer: Sealer, 
     .whereIn('k.key_system_id', systems)
     .orderBy('r.id')
     .forUpdate('r')
-    .select<{ id: string; controlKeyId: string; symbol: string; status: string; systemId: string; workOrderId: string; remaining: RemainingCore[] | null; rebuiltAt: Date | null }[]>('r.id', 'k.id as controlKeyId', 'k.symbol', 'k.status', 'k.key_system_id as systemId', 'r.work_order_id as workOrderId', 'r.remaining', 'r.rebuilt_at as rebuiltAt');
+    .select<{ id: string; issueId: string; controlKeyId: string; newControlKeyId: string; symbol: string; status: string; systemId: string; workOrderId: string; remaining: RemainingCore[] | null; rebuiltAt: Date | null }[]>('r.id', 'r.issue_id as issueId', 'k.id as controlKeyId', 'r.new_control_key_id as newControlKeyId', 'k.symbol', 'k.status', 'k.key_system_id as systemId', 'r.work_order_id as workOrderId', 'r.remaining', 'r.rebuilt_at as rebuiltAt');
   const closed: string[] = [];
   for (const r of reports) {
     if (r.status === 'retired' && !r.rebuiltAt) {
+      // Every holder of a copy (out, or the reported one) gets a re-issue task for the new control key.
+      const copies = await trx('key_issues').where({ control_key_id: r.controlKeyId }).where((w) => void w.where('status', 'out').orWhere('id', r.issueId)).select<{ id: string; holder_id: string }[]>('id', 'holder_id');
+      if (copies.length) await trx('key_reissue_tasks').insert(copies.map((c) => ({ report_id: r.id, holder_id: c.holder_id, old_issue_id: c.id, new_control_key_id: r.newControlKeyId }))).onConflict(['report_id', 'old_issue_id']).ignore();
       await trx('key_reports').where({ id: r.id }).update({ rebuilt_at: trx.fn.now() });
-      await audit(trx, actor, 'key-report.rebuilt', { type: 'key-report', id: r.id }, { workOrder: r.workOrderId, retired: 1, reissue: 0 });
+      await audit(trx, actor, 'key-report.rebuilt', { type: 'key-report', id: r.id }, { workOrder: r.workOrderId, retired: 1, reissue: copies.length });
     }
     const system = await loadSystem(trx, sealer, r.systemId);
     const remaining: RemainingCore[] = exposedCores(system, await installedCores(trx, r.systemId), { bitting: await controlBitting(trx, sealer, r.controlKeyId) }).map((c) => ({ coreId: c.id, tag: c.tag, doorId: c.doorId, doorLabel: c.doorLabel, keySymbol: r.symbol, how: c.how }));
     if (!remaining.length) {
       await trx('key_reports').where({ id: r.id }).update({ status: 'closed', closed_at: trx.fn.now(), remaining: JSON.stringify([]) });
-      await audit(trx, actor, 'key-report.closed', { type: 'key-report', id: r.id }, { workOrder: r.workOrderId, retired: 1, reissue: 0 });
+      const reissue = Number((await trx('key_reissue_tasks').where({ report_id: r.id }).count({ n: '*' }).first())?.n ?? 0);
+      await audit(trx, actor, 'key-report.closed', { type: 'key-report', id: r.id }, { workOrder: r.workOrderId, retired: 1, reissue });
       closed.push(r.id);
     } else if (JSON.stringify(remaining) !== JSON.stringify(r.remaining) && r.status === 'retired') {
       await trx('key_reports').where({ id: r.id }).update({ remaining: JSON.stringify(remaining) });

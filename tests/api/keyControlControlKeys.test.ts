@@ -216,7 +216,16 @@ describe('a lost control key: exposure, plan, work order, close-out', () => {
     expect((await h.call('GET', `/api/keys/${ck}/exposure`, { token: lead })).json.exposure.cores).toEqual([]);
     const ck2 = keys[0].id as string;
     expect(asSet((await h.call('GET', `/api/keys/${ck2}/exposure`, { token: lead })).json.exposure.cores)).toEqual(await bruteForce(after.control));
-    expect((await issue(other, ck2)).json.issue).toMatchObject({ keySymbol: 'CK2', copyNumber: 1, control: true });
+    // Every holder of a copy of CK (out, and the lost one) has a re-issue task for CK2; issuing closes it and takes the old copy back.
+    const tasks = (await h.call('GET', '/api/key-reissue-tasks?status=open', { token: lead })).json.tasks as { id: string; holderId: string; oldKeySymbol: string; newKeyId: string; newKeySymbol: string; oldCopyStatus: string }[];
+    const mine = tasks.filter((t) => t.oldKeySymbol === 'CK');
+    expect(mine.map((t) => t.holderId).sort()).toEqual((await h.db('key_issues').where({ control_key_id: ck }).whereIn('status', ['out', 'lost']).pluck('holder_id')).sort());
+    expect(mine.every((t) => t.newKeyId === ck2 && t.newKeySymbol === 'CK2')).toBe(true);
+    const sol = mine.find((t) => t.holderId === other)!;
+    expect(sol.oldCopyStatus).toBe('out');
+    const done = await h.call('POST', `/api/key-reissue-tasks/${sol.id}/issue`, { token: lead, body: { acknowledgement: ack('Sol') } });
+    expect(done.status, done.text).toBe(200);
+    expect(done.json.task).toMatchObject({ status: 'done', newKeySymbol: 'CK2', newCopyNumber: 1, oldCopyStatus: 'returned' });
     expect((await issue(other, ck)).status).toBe(409);
   });
 });
