@@ -71,7 +71,8 @@ export function progressKeys(profile: Profile, opts: ProgressOptions): string[] 
   if (rotating && chambers.length > 0 && (!Number.isInteger(constants) || constants < 1 || constants >= chambers.length)) {
     throw new KeyingError('progress-constants', chambers.length === 1
       ? 'Rotating constant needs at least two chambers to progress (one stays at the master’s cut in each key); choose another chamber.'
-      : `Rotating constant keeps ${String(constants)} chamber${constants === 1 ? '' : 's'} constant per key, but ${chambers.length} are progressed; keep 1 to ${chambers.length - 1}, or progress more chambers.`);
+      // Reached only for a count that is not 1 (with one constant, two progressed chambers or more are enough).
+      : `Rotating constant keeps ${String(constants)} chambers constant per key, but ${chambers.length} are progressed; keep 1 to ${chambers.length - 1}, or progress more chambers.`);
   }
   if (chambers.length === 0) return [];
 
