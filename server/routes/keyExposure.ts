@@ -11,6 +11,7 @@ import { actorOf, allow } from '../middleware/auth';
 import { parse } from '../middleware/validate';
 import { audit } from '../services/auditTrail';
 import { controlExposureOf, doorAccess, holderAccess, keyExposureOf } from '../services/keyExposure';
+import { closeControlReportAccepting } from '../services/controlRekey';
 import { closeReportAccepting } from '../services/keyCloseout';
 import { getReport, listReports, reportKey } from '../services/keyReports';
 import { planToWorkOrder, rekeyPlan } from '../services/rekeyPlans';
@@ -68,7 +69,10 @@ export function keyExposureRouter({ db, sealer }: Ctx): Router {
   r.post('/key-reports/:id/close', office, async (req, res) => {
     const id = parse(Id, req.params.id, 'The key report id');
     const input = parse(KeyReportCloseInput, req.body, 'The close');
-    await db.transaction((trx) => closeReportAccepting(trx, sealer, id, input.note, actorOf(req)));
+    await db.transaction(async (trx) => {
+      // A lost control key's report has its own close-out (controlRekey.ts); a key's goes through keyCloseout.ts.
+      if (!(await closeControlReportAccepting(trx, sealer, id, input.note, actorOf(req)))) await closeReportAccepting(trx, sealer, id, input.note, actorOf(req));
+    });
     res.json({ report: await getReport(db, id) });
   });
   return r;

@@ -139,7 +139,7 @@ export async function controlWorkOrder(db: Knex, sealer: Sealer, report: Report,
   if (report.new_control_key_id) {
     const fresh = (await findControlKey(db, report.new_control_key_id))!;
     if (!cores.length) throw conflict(`No installed core is built for ${control.symbol} any more: there is nothing to rebuild.`, [{ field: 'reportId', message: 'no cores' }]);
-    const wo = await rekeyWorkOrder(db, sealer, system.id, cores, new Map(), `${title(fresh.symbol)} (again)`, control.symbol, { ...input, newKeySymbol: undefined }, by);
+    const wo = await rekeyWorkOrder(db, sealer, system.id, cores, new Map(), `${title(fresh.symbol)} (again)`, `control key ${control.symbol}`, { ...input, newKeySymbol: undefined }, by);
     await db('key_reports').where({ id: report.id }).update({ work_order_id: wo.id });
     return { workOrderId: wo.id, newKeyId: fresh.id, newKeySymbol: fresh.symbol };
   }
@@ -152,7 +152,7 @@ export async function controlWorkOrder(db: Knex, sealer: Sealer, report: Report,
   await db('control_keys').where({ id: control.id }).update({ status: 'replaced', bitting_enc: sealer.seal(await controlBitting(db, sealer, control.id), controlKeyContext(control.id)) });
   const [fresh] = await db('control_keys').insert({ key_system_id: system.id, symbol }).returning<{ id: string }[]>('id');
   await db('key_systems').where({ id: system.id }).update({ control_enc: sealer.seal(bitting, controlContext(system.id)), updated_at: db.fn.now() });
-  const wo = await rekeyWorkOrder(db, sealer, system.id, cores, new Map(), title(symbol), control.symbol, { ...input, newKeySymbol: undefined }, by);
+  const wo = await rekeyWorkOrder(db, sealer, system.id, cores, new Map(), title(symbol), `control key ${control.symbol}`, { ...input, newKeySymbol: undefined }, by);
   await db('key_reports').where({ id: report.id }).update({ work_order_id: wo.id, rekey_option: 'new-control-key', new_control_key_id: fresh!.id });
   return { workOrderId: wo.id, newKeyId: fresh!.id, newKeySymbol: symbol };
 }
@@ -198,8 +198,7 @@ export async function closeControlRekeys(trx: Knex.Transaction, sealer: Sealer, 
       await trx('key_reports').where({ id: r.id }).update({ rebuilt_at: trx.fn.now() });
       await audit(trx, actor, 'key-report.rebuilt', { type: 'key-report', id: r.id }, { workOrder: r.workOrderId, retired: 1, reissue: copies.length });
     }
-    const system = await loadSystem(trx, sealer, r.systemId);
-    const remaining: RemainingCore[] = exposedCores(system, await installedCores(trx, r.systemId), { bitting: await controlBitting(trx, sealer, r.controlKeyId) }).map((c) => ({ coreId: c.id, tag: c.tag, doorId: c.doorId, doorLabel: c.doorLabel, keySymbol: r.symbol, how: c.how }));
+    const remaining = await stillRemoves(trx, sealer, r);
     if (!remaining.length) {
       await trx('key_reports').where({ id: r.id }).update({ status: 'closed', closed_at: trx.fn.now(), remaining: JSON.stringify([]) });
       const reissue = Number((await trx('key_reissue_tasks').where({ report_id: r.id }).count({ n: '*' }).first())?.n ?? 0);
@@ -211,4 +210,34 @@ export async function closeControlRekeys(trx: Knex.Transaction, sealer: Sealer, 
     }
   }
   return closed;
+}
+
+/** Every installed core the lost control key still removes or turns, through the engine (each core read with the control key it was built for). */
+async function stillRemoves(trx: Knex, sealer: Sealer, r: { systemId: string; controlKeyId: string; symbol: string }): Promise<RemainingCore[]> {
+  const system = await loadSystem(trx, sealer, r.systemId);
+  return exposedCores(system, await installedCores(trx, r.systemId), { bitting: await controlBitting(trx, sealer, r.controlKeyId) }).map((c) => ({ coreId: c.id, tag: c.tag, doorId: c.doorId, doorLabel: c.doorLabel, keySymbol: r.symbol, how: c.how }));
+}
+
+/**
+ * A lost control key's report closed by hand once its rekey is installed, accepting the cores it still removes or
+ * turns, with the supervisor's note (as keyCloseout.ts's closeReportAccepting for a key). False when the report is
+ * not a control key's: the caller hands it to keyCloseout.ts.
+ */
+export async function closeControlReportAccepting(trx: Knex.Transaction, sealer: Sealer, reportId: string, note: string, actor: Actor): Promise<boolean> {
+  const r = await trx('key_reports as r')
+    .join('key_issues as i', 'i.id', 'r.issue_id')
+    .join('control_keys as k', 'k.id', 'i.control_key_id')
+    .where('r.id', reportId)
+    .forUpdate('r')
+    .first<{ status: string; workOrderId: string | null; rebuiltAt: Date | null; controlKeyId: string; symbol: string; systemId: string } | undefined>('r.status', 'r.work_order_id as workOrderId', 'r.rebuilt_at as rebuiltAt', 'k.id as controlKeyId', 'k.symbol', 'k.key_system_id as systemId');
+  if (!r) return false;
+  if (r.status !== 'open') throw conflict('This report is closed already.', [{ field: 'reportId', message: 'closed' }]);
+  if (!r.rebuiltAt) {
+    const why = r.workOrderId ? 'its rekey work order is not installed yet' : 'it has no rekey work order yet';
+    throw conflict(`A report is closed by hand only after its rekey is installed, and ${why}: make the work order, build and install its cores; the report then closes by itself when control key ${r.symbol} removes no core.`, [{ field: 'reportId', message: 'not rebuilt' }]);
+  }
+  const remaining = await stillRemoves(trx, sealer, r);
+  await trx('key_reports').where({ id: reportId }).update({ status: 'closed', closed_at: trx.fn.now(), remaining: JSON.stringify(remaining), close_note: note, closed_by: actor.id });
+  await audit(trx, actor, 'key-report.closed', { type: 'key-report', id: reportId }, { workOrder: r.workOrderId, retired: 1, note, accepted: remaining.length });
+  return true;
 }

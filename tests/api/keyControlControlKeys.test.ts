@@ -193,6 +193,11 @@ describe('a lost control key: exposure, plan, work order, close-out', () => {
     expect(plan).toMatchObject({ workOrderId: res.json.workOrderId, chosen: 'new-control-key', newKeySymbol: 'CK2' });
     expect(bittingsIn(JSON.stringify([res.json, plan]), [system.control, after.control])).toEqual([]);
     expect((await h.call('POST', `/api/key-reports/${reportId}/work-order`, { token: lead, body: {} })).status).toBe(409);
+    // Not closed by hand before its cores are in: the message says what to do.
+    const early = await h.call('POST', `/api/key-reports/${reportId}/close`, { token: lead, body: { note: 'Accepting the risk' } });
+    expect(early.status).toBe(409);
+    expect(early.json.error.message).toContain('only after its rekey is installed');
+    expect((await h.db('key_reports').where({ id: reportId }).first('status')).status).toBe('open');
   });
 
   test('installed through sync: the report closes and the old control key is retired; copies of the new one are issued', async () => {
@@ -227,5 +232,6 @@ describe('a lost control key: exposure, plan, work order, close-out', () => {
     expect(done.status, done.text).toBe(200);
     expect(done.json.task).toMatchObject({ status: 'done', newKeySymbol: 'CK2', newCopyNumber: 1, oldCopyStatus: 'returned' });
     expect((await issue(other, ck)).status).toBe(409);
+    expect((await h.call('POST', `/api/key-reports/${reportId}/close`, { token: lead, body: { note: 'Again' } })).json.error.message).toContain('closed already');
   });
 });
