@@ -124,6 +124,7 @@ describe('auditSystem on a planted system', () => {
       severity: 'info', keys: ['A'], chambers: [1, 2, 3, 4, 5],
       data: { positionsMastered: 5, chambers: 6, testCuts: 20, testCutsAllPositions: 24 },
     })]);
+    expect(of('rights-amplification')[0]?.message).toMatch(/^Top master A: 5 of 6 positions are mastered\. .* at most 20 test cuts in the mastered positions \(24 test cuts when every position is tried/);
   });
 
   test('sorted errors, then warnings, then information; codes in their listed order', () => {
