@@ -232,6 +232,12 @@ describe('a lost control key: exposure, plan, work order, close-out', () => {
     expect(done.status, done.text).toBe(200);
     expect(done.json.task).toMatchObject({ status: 'done', newKeySymbol: 'CK2', newCopyNumber: 1, oldCopyStatus: 'returned' });
     expect((await issue(other, ck)).status).toBe(409);
+    // A copy of the retired control key still out is taken back, not passed on.
+    const pats = mine.find((t) => t.oldCopyStatus === 'out' && t.holderId !== other)!;
+    const stillOut = (await h.db('key_reissue_tasks').where({ id: pats.id }).first('old_issue_id')).old_issue_id as string;
+    const passOn = await h.call('POST', `/api/key-issues/${stillOut}/transfer`, { token: lead, body: { holderId: other, acknowledgement: ack('Sol') } });
+    expect(passOn.status).toBe(409);
+    expect(passOn.json.error.message).toContain('Key CK is retired: take CK #2 back');
     expect((await h.call('POST', `/api/key-reports/${reportId}/close`, { token: lead, body: { note: 'Again' } })).json.error.message).toContain('closed already');
   });
 });
