@@ -1,7 +1,7 @@
 /**
  * A key select's options with type-to-filter: the system's active keys, in natural symbol
  * order, each labelled with its level. For a `q-select` with `use-input`:
- * `:options="keyOptions" @filter="filterKeys"`.
+ * `:options="keyOptions" @filter="filterKeys"`; `KeySelect.vue` is that select.
  */
 import { computed, ref, type Ref } from 'vue';
 import type { Key } from '@shared/schemas/records';
@@ -18,5 +18,5 @@ export function useKeyOptions(keys: Ref<Key[]>) {
   function filterKeys(value: string, update: (fn: () => void) => void): void {
     update(() => (needle.value = value.toLowerCase()));
   }
-  return { keyOptions, filterKeys };
+  return { keyOptions, filterKeys, needle };
 }
