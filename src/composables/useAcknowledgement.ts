@@ -4,6 +4,8 @@ import { computed, ref } from 'vue';
  * The state of a holder's acknowledgement (AcknowledgementFields.vue) and the request body's part:
  * signed on the screen or typed and ticked. `missing` says what the holder must still do.
  */
+export type Acknowledgement = ReturnType<typeof useAcknowledgement>;
+
 export function useAcknowledgement() {
   const mode = ref<'draw' | 'typed'>('draw');
   const name = ref('');
