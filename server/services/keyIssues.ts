@@ -10,13 +10,12 @@ import type { Knex } from 'knex';
 import type { CutList, KeyIssue, KeyIssueInput, KeyIssueQuery, KeyTransferInput, OutstandingKeys, TransferLink } from '../../shared/schemas/keyControl';
 import { badRequest, conflict, notFound } from '../errors';
 import { controlBitting } from './controlKeys';
+import { joinHolder } from './keyHolders';
 import { keyContext } from './keySystems';
 import type { Sealer } from './secrets';
 
 export function issueQuery(db: Knex) {
-  return db('key_issues as i')
-    .join('key_holders as h', 'h.id', 'i.holder_id')
-    .join('departments as d', 'd.id', 'h.department_id')
+  return joinHolder(db('key_issues as i'), 'i.holder_id')
     .leftJoin('keys as k', 'k.id', 'i.key_id')
     .leftJoin('control_keys as ck', 'ck.id', 'i.control_key_id')
     .leftJoin('users as u', 'u.id', 'i.issued_by')

@@ -154,12 +154,7 @@ export const KeyIssueInput = z.strictObject({
 export type KeyIssueInput = z.infer<typeof KeyIssueInput>;
 
 /** A copy that is out passed to another holder in one step: authorised and acknowledged as an issue. */
-export const KeyTransferInput = z.strictObject({
-  holderId: Id,
-  requestId: Id.optional(),
-  dueDate: IsoDate.optional(),
-  acknowledgement: Acknowledgement,
-});
+export const KeyTransferInput = KeyIssueInput.omit({ keyId: true });
 export type KeyTransferInput = z.infer<typeof KeyTransferInput>;
 
 export const KeyIssueQuery = z.strictObject({
