@@ -65,6 +65,8 @@ for (const [name, viewport, symbol] of [
       await page.getByTestId('signature-canvas').scrollIntoViewIfNeeded();
       await drawWithFinger(page, '[data-test="signature-canvas"]', scrawl);
       await expect(page.getByTestId('signature-field')).toContainText('Signed');
+      // Once signed, the form no longer says what was missing.
+      await expect(page.getByText('signs in the box first')).toHaveCount(0);
       // Ink on the canvas, where the finger went.
       const inked = await page.locator('[data-test="signature-canvas"]').evaluate((c: HTMLCanvasElement) => {
         const data = c.getContext('2d')!.getImageData(0, 0, c.width, c.height).data;

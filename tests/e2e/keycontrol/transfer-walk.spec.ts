@@ -50,6 +50,8 @@ test('a copy passes from a holder who is leaving to a colleague, keeping its cop
   await page.getByTestId('transfer-save').click();
   await expect(page.getByText('The holder signs in the box first')).toBeVisible();
   await page.getByTestId('ack-mode-typed').click();
+  // Typed and ticked needs no signature: the message goes.
+  await expect(page.getByText('The holder signs in the box first')).toHaveCount(0);
   await page.getByTestId('ack-name').fill('Hal Whitby');
   await page.getByTestId('ack-accepted').click();
   expect(await smallTargets(page, 48)).toEqual([]);
