@@ -144,7 +144,8 @@ describe('no state carries over from one chart to the next (common practice for 
 describe('a build-up thinner than the profile allows (keying primer: smallest wafer)', () => {
   test('one unit: the chart still shows the 1-unit build-up, and the message says "1 unit" and the control cut that fixes it', () => {
     // Chamber 1: depth 9 under control 0, so 0 + 10 − 9 = 1 unit; 9 + 2 − 10 = 1 is the shallowest control cut that leaves 2.
-    const pinning = pinCore(sfic6, { operating: ['999999'], control: '099999' });
+    // A profile object of its own, so its chambers are computed here and not taken from another test's cache.
+    const pinning = pinCore({ ...sfic6 }, { operating: ['999999'], control: '099999' });
     expect(pinning.chambers[0]?.buildUp).toEqual([1]);
     expect(pinning.issues.filter((i) => i.code === 'wafer-too-thin')).toStrictEqual([{
       code: 'wafer-too-thin', severity: 'error', chamber: 1,

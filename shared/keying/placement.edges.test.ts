@@ -115,6 +115,10 @@ describe('placement: the message names the right key, worked out by hand', () =>
 
   test('a key at the top with no named top master: no top master, so no parity to break', () => {
     expect(checkKeyPlacement(sfic6, system, { bitting: '135797', parentId: null })).toEqual([]);
+    // The same for a key being changed (it has an id), and under a master whose own bitting cannot be read.
+    expect(checkKeyPlacement(sfic6, system, { id: 'new', bitting: '135797', parentId: null })).toEqual([]);
+    const unreadableTop: PlacementSystem = { ...system, keys: [{ id: 'u', symbol: 'U', bitting: '44x444', parentId: null }, ...system.keys] };
+    expect(checkKeyPlacement(sfic6, unreadableTop, { id: 'new', bitting: '135797', parentId: 'u' })).toEqual([]);
   });
 
   test('a master re-hung under its own change key: the chain stops at the key itself', () => {
