@@ -152,4 +152,19 @@ describe('a build-up thinner than the profile allows (keying primer: smallest wa
       message: 'Chamber 1: the build-up would be 1 unit (control 0 + sleeve 10 − deepest cut 9), thinner than the 2-unit minimum — choose a control cut of 1 or deeper in chamber 1, or a shallower deepest operating cut.',
     }]);
   });
+
+  test('two units under a 3-unit minimum: "2 units"', () => {
+    // 1 + 10 − 9 = 2 units; 9 + 3 − 10 = 2 is the shallowest control cut that leaves 3.
+    const pinning = pinCore({ ...sfic6, minWaferUnits: 3 }, { operating: ['999999'], control: '199999' });
+    expect(pinning.issues.filter((i) => i.code === 'wafer-too-thin').map((i) => i.message)).toEqual([
+      'Chamber 1: the build-up would be 2 units (control 1 + sleeve 10 − deepest cut 9), thinner than the 3-unit minimum — choose a control cut of 2 or deeper in chamber 1, or a shallower deepest operating cut.',
+    ]);
+  });
+
+  test('a build-up no stocked wafers can make stays on the chart as the size needed', () => {
+    // Wafers 2..4 only: 9 + 10 − 0 = 19 units cannot be one wafer or two.
+    const pinning = pinCore({ ...sfic6, wafers: [2, 3, 4] }, { operating: ['000000'], control: '999999' });
+    expect(pinning.chambers.map((ch) => ch.buildUp)).toEqual(Array(6).fill([19]));
+    expect(pinning.issues.filter((i) => i.code === 'size-not-stocked').map((i) => i.chamber)).toEqual([1, 2, 3, 4, 5, 6]);
+  });
 });
