@@ -26,6 +26,22 @@ export function installFor(core: PacketCore, opts: { removedCoreTag?: string | n
   return { clientId: randomUUID(), kind: 'install', coreId: core.id, doorId: core.door!.id, removedCoreTag: opts.removedCoreTag ?? null, installedAt: new Date().toISOString() };
 }
 
+/**
+ * The tablet's records for every core of a work order, as a technician would send them: a passed
+ * completion and an install in its planned door naming the core on record there as taken out.
+ */
+export async function buildAndInstallRecords(h: Harness, token: string, workOrderId: string) {
+  const res = await h.call('GET', `/api/work-orders/${workOrderId}/packet`, { token });
+  if (res.status !== 200) throw new Error(`packet: ${res.status} ${res.text}`);
+  const packet = res.json.packet as Packet;
+  const records = [];
+  for (const core of packet.cores) {
+    const old = await h.db('cores').where({ door_id: core.door!.id, state: 'installed' }).first('tag');
+    records.push({ coreId: core.id, doorId: core.door!.id, completion: completionFor(workOrderId, core), install: installFor(core, { removedCoreTag: old?.tag ?? null }) });
+  }
+  return records;
+}
+
 /** The demo technician's first open work order and its packet. */
 export async function techPacket(h: Harness, title = 'Aster Hall'): Promise<{ token: string; packet: Packet }> {
   const token = await h.tokenFor('technician');

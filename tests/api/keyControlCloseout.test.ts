@@ -6,10 +6,9 @@
 // re-issue) and common practice (the old key is retired once no core takes it).
 import { randomUUID } from 'node:crypto';
 import { afterAll, beforeAll, describe, expect, test } from 'vitest';
-import type { Packet } from '../../shared/schemas/packet';
 import { keyOperates, pinCore } from '../../shared/keying';
 import { loadSystem } from '../../server/services/keySystems';
-import { completionFor } from './factories';
+import { buildAndInstallRecords } from './factories';
 import { startHarness, type Harness } from './harness';
 
 let h: Harness;
@@ -28,18 +27,7 @@ beforeAll(async () => {
 });
 afterAll(async () => h.close());
 
-/** The tablet's records for every core of the work order: a passed completion and an install in its door (the old core named). */
-async function recordsFor(workOrderId: string) {
-  const res = await h.call('GET', `/api/work-orders/${workOrderId}/packet`, { token: tech });
-  expect(res.status, res.text).toBe(200);
-  const packet = res.json.packet as Packet;
-  const records = [];
-  for (const core of packet.cores) {
-    const old = await h.db('cores').where({ door_id: core.door!.id, state: 'installed' }).first('tag');
-    records.push({ completion: completionFor(workOrderId, core), install: { clientId: randomUUID(), kind: 'install', coreId: core.id, doorId: core.door!.id, removedCoreTag: old?.tag ?? null, installedAt: new Date().toISOString() } });
-  }
-  return records;
-}
+const recordsFor = (workOrderId: string) => buildAndInstallRecords(h, tech, workOrderId);
 const sync = (records: unknown[]) => h.call('POST', '/api/sync', { token: tech, body: { deviceId, records } });
 
 async function report(reportId: string) {

@@ -8,10 +8,9 @@
 // cores are checked against brute force through keyOperates on each installed core's pinCore chart.
 import { randomUUID } from 'node:crypto';
 import { afterAll, beforeAll, describe, expect, test } from 'vitest';
-import type { Packet } from '../../shared/schemas/packet';
 import { keyOperates, pinCore } from '../../shared/keying';
 import { loadSystem } from '../../server/services/keySystems';
-import { completionFor } from './factories';
+import { buildAndInstallRecords } from './factories';
 import { startHarness, type Harness } from './harness';
 
 let h: Harness;
@@ -37,18 +36,7 @@ beforeAll(async () => {
 });
 afterAll(async () => h.close());
 
-/** The tablet's records for every core of the work order: a passed completion and an install in its planned door. */
-async function recordsFor(workOrderId: string) {
-  const res = await h.call('GET', `/api/work-orders/${workOrderId}/packet`, { token: tech });
-  expect(res.status, res.text).toBe(200);
-  const packet = res.json.packet as Packet;
-  const records = [];
-  for (const core of packet.cores) {
-    const old = await h.db('cores').where({ door_id: core.door!.id, state: 'installed' }).first('tag');
-    records.push({ coreId: core.id, doorId: core.door!.id, completion: completionFor(workOrderId, core), install: { clientId: randomUUID(), kind: 'install', coreId: core.id, doorId: core.door!.id, removedCoreTag: old?.tag ?? null, installedAt: new Date().toISOString() } });
-  }
-  return records;
-}
+const recordsFor = (workOrderId: string) => buildAndInstallRecords(h, tech, workOrderId);
 
 /** Builds and installs a door's core for its key, as a maintenance work order. */
 async function buildFor(doorId: string, keyId: string, title: string) {
