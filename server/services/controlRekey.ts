@@ -20,6 +20,7 @@ import { naturalCompare } from '../../shared/words';
 import { conflict } from '../errors';
 import { audit, type Actor } from './auditTrail';
 import { controlBitting, findControlKey, nextControlSymbol, type StoredControlKey } from './controlKeys';
+import { keepRemaining, notRebuiltYet } from './keyCloseout';
 import { exposedCores, installedCores } from './keyExposure';
 import { controlContext, controlKeyContext, loadSystem, topMasterOf, type LoadedSystem } from './keySystems';
 import { planCore, rekeyWorkOrder, withRebuildKeys, type InstalledCore, type loadReport } from './rekeyPlans';
@@ -204,9 +205,8 @@ export async function closeControlRekeys(trx: Knex.Transaction, sealer: Sealer, 
       const reissue = Number((await trx('key_reissue_tasks').where({ report_id: r.id }).count({ n: '*' }).first())?.n ?? 0);
       await audit(trx, actor, 'key-report.closed', { type: 'key-report', id: r.id }, { workOrder: r.workOrderId, retired: 1, reissue });
       closed.push(r.id);
-    } else if (JSON.stringify(remaining) !== JSON.stringify(r.remaining) && r.status === 'retired') {
-      await trx('key_reports').where({ id: r.id }).update({ remaining: JSON.stringify(remaining) });
-      await audit(trx, actor, 'key-report.still-turns', { type: 'key-report', id: r.id }, { cores: remaining.length, doors: remaining.map((c) => c.doorLabel ?? c.tag).join(', ') });
+    } else if (r.status === 'retired') {
+      await keepRemaining(trx, actor, r, remaining);
     }
   }
   return closed;
@@ -232,10 +232,7 @@ export async function closeControlReportAccepting(trx: Knex.Transaction, sealer:
     .first<{ status: string; workOrderId: string | null; rebuiltAt: Date | null; controlKeyId: string; symbol: string; systemId: string } | undefined>('r.status', 'r.work_order_id as workOrderId', 'r.rebuilt_at as rebuiltAt', 'k.id as controlKeyId', 'k.symbol', 'k.key_system_id as systemId');
   if (!r) return false;
   if (r.status !== 'open') throw conflict('This report is closed already.', [{ field: 'reportId', message: 'closed' }]);
-  if (!r.rebuiltAt) {
-    const why = r.workOrderId ? 'its rekey work order is not installed yet' : 'it has no rekey work order yet';
-    throw conflict(`A report is closed by hand only after its rekey is installed, and ${why}: make the work order, build and install its cores; the report then closes by itself when control key ${r.symbol} removes no core.`, [{ field: 'reportId', message: 'not rebuilt' }]);
-  }
+  if (!r.rebuiltAt) throw notRebuiltYet(r.workOrderId, `control key ${r.symbol} removes no core`);
   const remaining = await stillRemoves(trx, sealer, r);
   await trx('key_reports').where({ id: reportId }).update({ status: 'closed', closed_at: trx.fn.now(), remaining: JSON.stringify(remaining), close_note: note, closed_by: actor.id });
   await audit(trx, actor, 'key-report.closed', { type: 'key-report', id: reportId }, { workOrder: r.workOrderId, retired: 1, note, accepted: remaining.length });

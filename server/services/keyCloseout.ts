@@ -22,7 +22,7 @@ import type { RemainingCore } from '../../shared/schemas/keyControlExposure';
 import { conflict, notFound } from '../errors';
 import { audit, type Actor } from './auditTrail';
 import { exposedCores, installedCores } from './keyExposure';
-import { loadSystem } from './keySystems';
+import { loadSystem, type LoadedSystem } from './keySystems';
 import type { Sealer } from './secrets';
 
 interface Replaced { oldKeyId: string; newKeyId: string }
@@ -44,18 +44,28 @@ export async function closeReportsAfterInstalls(trx: Knex.Transaction, sealer: S
   const systems = trx('cores').whereIn('id', coreIds).distinct('key_system_id');
   const reports = await openRekeys(trx).whereIn('k.key_system_id', systems);
   const closed: string[] = [];
+  const seen: Installed = new Map();
   for (const r of reports) {
     if (!(await allInstalled(trx, r.work_order_id))) continue;
     if (!r.rebuilt_at) await markRebuilt(trx, r, actor);
-    const remaining = await remainingCores(trx, sealer, r);
-    if (!remaining.length) {
-      closed.push(...(await close(trx, r, actor, null)));
-    } else if (JSON.stringify(remaining) !== JSON.stringify(r.remaining)) {
-      await trx('key_reports').where({ id: r.id }).update({ remaining: JSON.stringify(remaining) });
-      await audit(trx, actor, 'key-report.still-turns', { type: 'key-report', id: r.id }, { cores: remaining.length, doors: remaining.map((c) => c.doorLabel ?? c.tag).join(', ') });
-    }
+    const remaining = await remainingCores(trx, sealer, r, seen);
+    if (!remaining.length) closed.push(...(await close(trx, r, actor, null)));
+    else await keepRemaining(trx, actor, r, remaining);
   }
   return closed;
+}
+
+/** A rebuilt report the old key still turns cores of stays open and keeps them; audited only when the list changes. */
+export async function keepRemaining(trx: Knex.Transaction, actor: Actor, r: { id: string; remaining: RemainingCore[] | null }, remaining: RemainingCore[]): Promise<void> {
+  if (JSON.stringify(remaining) === JSON.stringify(r.remaining)) return;
+  await trx('key_reports').where({ id: r.id }).update({ remaining: JSON.stringify(remaining) });
+  await audit(trx, actor, 'key-report.still-turns', { type: 'key-report', id: r.id }, { cores: remaining.length, doors: remaining.map((c) => c.doorLabel ?? c.tag).join(', ') });
+}
+
+/** Closing by hand comes after the rekey is installed; before, the report closes by itself (`closesWhen`). */
+export function notRebuiltYet(workOrderId: string | null, closesWhen: string) {
+  const why = workOrderId ? 'its rekey work order is not installed yet' : 'it has no rekey work order yet';
+  return conflict(`A report is closed by hand only after its rekey is installed, and ${why}: make the work order, build and install its cores; the report then closes by itself when ${closesWhen}.`, [{ field: 'reportId', message: 'not rebuilt' }]);
 }
 
 /**
@@ -67,10 +77,7 @@ export async function closeReportAccepting(trx: Knex.Transaction, sealer: Sealer
   const exists = await trx('key_reports').where({ id: reportId }).first('status', 'work_order_id', 'rebuilt_at');
   if (!exists) throw notFound('That key report');
   if (exists.status !== 'open') throw conflict('This report is closed already.', [{ field: 'reportId', message: 'closed' }]);
-  if (!exists.rebuilt_at) {
-    const why = exists.work_order_id ? 'its rekey work order is not installed yet' : 'it has no rekey work order yet';
-    throw conflict(`A report is closed by hand only after its rekey is installed, and ${why}: make the work order, build and install its cores; the report then closes by itself when the old key turns no core.`, [{ field: 'reportId', message: 'not rebuilt' }]);
-  }
+  if (!exists.rebuilt_at) throw notRebuiltYet(exists.work_order_id, 'the old key turns no core');
   const [r] = await openRekeys(trx).where('r.id', reportId);
   if (!r) throw conflict('This report is closed already.', [{ field: 'reportId', message: 'closed' }]);
   const remaining = await remainingCores(trx, sealer, r);
@@ -122,12 +129,17 @@ async function markRebuilt(trx: Knex.Transaction, r: ReportRow, actor: Actor): P
   await audit(trx, actor, 'key-report.rebuilt', { type: 'key-report', id: r.id }, { workOrder: r.work_order_id, retired: newOf.size, reissue: copies.length });
 }
 
-/** Every installed core of the system an old key still turns or removes, through the engine (keyExposure on each core's chart). */
-async function remainingCores(trx: Knex.Transaction, sealer: Sealer, r: ReportRow): Promise<RemainingCore[]> {
+type Installed = Map<string, Promise<[LoadedSystem, Awaited<ReturnType<typeof installedCores>>]>>;
+
+/**
+ * Every installed core of the system an old key still turns or removes, through the engine (keyExposure on each core's chart).
+ * `seen` keeps each system and its installed cores read once per batch, however many of its reports are settled.
+ */
+async function remainingCores(trx: Knex.Transaction, sealer: Sealer, r: ReportRow, seen: Installed = new Map()): Promise<RemainingCore[]> {
   const old = new Set(oldKeyIds(r));
   if (!old.size) return [];
-  const system = await loadSystem(trx, sealer, r.systemId);
-  const cores = await installedCores(trx, r.systemId);
+  if (!seen.has(r.systemId)) seen.set(r.systemId, Promise.all([loadSystem(trx, sealer, r.systemId), installedCores(trx, r.systemId)]));
+  const [system, cores] = await seen.get(r.systemId)!;
   return system.keys
     .filter((k) => old.has(k.id))
     .flatMap((key) => exposedCores(system, cores, key).map((c) => ({ coreId: c.id, tag: c.tag, doorId: c.doorId, doorLabel: c.doorLabel, keySymbol: key.symbol, how: c.how })));
